@@ -1,0 +1,6 @@
+namespace SenseSplit.Cli;
+
+public static class Program
+{
+    public static int Main(string[] args) => CliApp.Run(args, Console.Out, Console.Error);
+}
