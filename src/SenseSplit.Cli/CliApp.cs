@@ -12,7 +12,11 @@ public static class CliApp
     {
         var root = new RootCommand("SenseSplit: find which terms of a corpus carry several senses, and check that an embedding keeps senses apart.");
         root.Options.Add(VerboseOption);
+        root.Subcommands.Add(EmbedCommand.Create(context));
         root.Subcommands.Add(AtomsCommand.Create(context));
+        root.Subcommands.Add(AuditCommand.Create(context));
+        root.Subcommands.Add(SensesCommand.Create(context));
+        root.Subcommands.Add(TagCommand.Create(context));
         return root;
     }
 
