@@ -11,7 +11,15 @@ internal unsafe interface IGemmMicroKernel
 {
     static abstract int MR { get; }
     static abstract int NR { get; }
+
+    /// <summary><see cref="RunEdge"/> writes ⌈cols/EdgeStep⌉·EdgeStep columns of the tile.</summary>
+    static abstract int EdgeStep { get; }
+
     static abstract void Run(float* a, nint lda, float* bp, int kc, float* c, nint ldc, bool accumulate);
+
+    /// <summary>The same product for a panel of which only the first <paramref name="cols"/> columns exist: skips
+    /// whole vectors past them. Each element's multiply-add chain is the one <see cref="Run"/> computes.</summary>
+    static abstract void RunEdge(float* a, nint lda, float* bp, int kc, float* c, nint ldc, bool accumulate, int cols);
 }
 
 /// <summary>Pointers and shapes of one product C = A·Bᵀ (see <see cref="Gemm"/>); pinned by the caller.</summary>
@@ -32,8 +40,12 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
     /// <summary>Deepest k-slice: 512 keeps k = 300 (the embedding width) in one slice, so C is written once.</summary>
     internal const int KcMax = 512;
 
-    /// <summary>Columns per block: a 512×300 packed block (600 KB) stays in a 1 MB L2 while slivers of A pass.</summary>
-    internal const int NcBlock = 512;
+    /// <summary>
+    /// Columns per block. Measured on the 2-core EPYC (see docs/performance.md): a block that fits L2 (512 columns)
+    /// was slower than 2048 columns streamed from L3, because every block re-reads all of A; 2048 covers the 2000
+    /// atoms in one block, and a packed 2048×300 block (2.4 MB) sits in L3.
+    /// </summary>
+    internal const int NcBlock = 2048;
 
     /// <summary>Below this many multiply-adds one worker is faster than waking a second (results are the same).</summary>
     private const long SerialBelow = 1L << 20;
@@ -143,11 +155,16 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
                             TKernel.Run(ap, lda, bp, kc, cp, job.Ldc, accumulate);
                             continue;
                         }
+                        if (rows == mr && cols % TKernel.EdgeStep == 0)
+                        {
+                            TKernel.RunEdge(ap, lda, bp, kc, cp, job.Ldc, accumulate, cols);
+                            continue;
+                        }
                         // Edge tile: run the full kernel on a scratch tile and copy back the part that exists.
                         if (accumulate)
                             for (int r = 0; r < rows; r++)
                                 for (int s = 0; s < cols; s++) edgeC[r * nr + s] = cp[r * job.Ldc + s];
-                        TKernel.Run(ap, lda, bp, kc, edgeC, nr, accumulate);
+                        TKernel.RunEdge(ap, lda, bp, kc, edgeC, nr, accumulate, cols);
                         for (int r = 0; r < rows; r++)
                             for (int s = 0; s < cols; s++) cp[r * job.Ldc + s] = edgeC[r * nr + s];
                     }
