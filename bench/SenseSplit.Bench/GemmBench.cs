@@ -17,7 +17,7 @@ namespace SenseSplit.Bench;
 public sealed class GemmBench : IBenchSuite
 {
     public string Name => "gemm";
-    public string Description => "C = A·Bᵀ kernels vs FMA peak loop, OpenBLAS sgemm and per-pair dot ([--rounds R] [--rows M])";
+    public string Description => "C = A·Bᵀ kernels vs FMA peak loop, OpenBLAS sgemm, per-pair dot ([--rounds R] [--rows M] [--case vectors|gram|awkward])";
 
     private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
 
@@ -25,15 +25,18 @@ public sealed class GemmBench : IBenchSuite
     {
         int rounds = IntOption(args, "--rounds", 3);
         int rows = IntOption(args, "--rows", 50_000);
+        int at = Array.IndexOf(args, "--case");
+        string only = at >= 0 && at + 1 < args.Length ? args[at + 1] : "";
         var blas = OpenBlas.TryLoad();
         Console.WriteLine(blas is null
             ? "# OpenBLAS: libopenblas.so.0 not found (Debian: apt-get install libopenblas0-pthread); its figures are skipped"
             : $"# OpenBLAS: {blas.Description}");
         Console.WriteLine($"# Auto path: {Gemm.Resolve(GemmKernel.Auto)}; GFLOP/s = 2·m·n·k / seconds; best of {rounds} interleaved rounds");
+        Console.WriteLine("# (cpu x) after a figure = process CPU time / (wall time × threads): well below 1 means another process took the core");
 
-        Case(blas, rounds, "vectors x atoms", rows, 2000, 300, gram: false, extraPaths: true);
-        Case(blas, rounds, "Gram of atoms", 2000, 2000, 300, gram: true, extraPaths: false);
-        Case(blas, rounds, "awkward 300", 10_007, 300, 300, gram: false, extraPaths: false);
+        if (only is "" or "vectors") Case(blas, rounds, "vectors x atoms", rows, 2000, 300, gram: false, extraPaths: true);
+        if (only is "" or "gram") Case(blas, rounds, "Gram of atoms", 2000, 2000, 300, gram: true, extraPaths: false);
+        if (only is "" or "awkward") Case(blas, rounds, "awkward 300", 10_007, 300, 300, gram: false, extraPaths: false);
         return 0;
     }
 
@@ -55,22 +58,29 @@ public sealed class GemmBench : IBenchSuite
         for (int round = 1; round <= rounds; round++)
         {
             var r = new Dictionary<string, double>(StringComparer.Ordinal);
+            var cpu = new Dictionary<string, double>(StringComparer.Ordinal);
+            void Figure(string key, double work, int threads, Action action)
+            {
+                var (seconds, share) = Time(action, threads);
+                r[key] = work / seconds / 1e9;
+                cpu[key] = share;
+            }
             foreach (int t in new[] { 1, 2 })
             {
-                r[$"peak t{t}"] = FmaPeak(t);
-                r[$"ours t{t}"] = flops / Time(() => Gemm.MultiplyTransposed(a, m, b, n, k, c, t)) / 1e9;
-                if (blas is not null)
-                    r[$"openblas t{t}"] = flops / Time(() => blas.MultiplyTransposed(a, m, b, n, k, c, t)) / 1e9;
+                Figure($"peak t{t}", FmaPeakFlops(t), t, () => FmaPeak(t));
+                Figure($"ours t{t}", flops, t, () => Gemm.MultiplyTransposed(a, m, b, n, k, c, t));
+                if (blas is not null) Figure($"openblas t{t}", flops, t, () => blas.MultiplyTransposed(a, m, b, n, k, c, t));
             }
             if (extraPaths)
             {
                 if (Gemm.IsSupported(GemmKernel.Avx2))
-                    r["avx2 t2"] = 2.0 * avx2Rows * n * k / Time(() => Gemm.MultiplyTransposed(a.AsSpan(0, avx2Rows * k), avx2Rows, b, n, k, c, 2, GemmKernel.Avx2)) / 1e9;
-                r["scalar t2"] = 2.0 * scalarRows * n * k / Time(() => Gemm.MultiplyTransposed(a.AsSpan(0, scalarRows * k), scalarRows, b, n, k, c, 2, GemmKernel.Scalar)) / 1e9;
-                r["dot t1"] = 2.0 * dotRows * n * k / Time(() => PairwiseDot(a, dotRows, b, n, k, c)) / 1e9;
+                    Figure("avx2 t2", 2.0 * avx2Rows * n * k, 2, () => Gemm.MultiplyTransposed(a.AsSpan(0, avx2Rows * k), avx2Rows, b, n, k, c, 2, GemmKernel.Avx2));
+                Figure("avx2 t1", 2.0 * avx2Rows * n * k, 1, () => Gemm.MultiplyTransposed(a.AsSpan(0, avx2Rows * k), avx2Rows, b, n, k, c, 1, GemmKernel.Avx2));
+                Figure("scalar t2", 2.0 * scalarRows * n * k, 2, () => Gemm.MultiplyTransposed(a.AsSpan(0, scalarRows * k), scalarRows, b, n, k, c, 2, GemmKernel.Scalar));
+                Figure("dot t1", 2.0 * dotRows * n * k, 1, () => PairwiseDot(a, dotRows, b, n, k, c));
             }
             foreach (var (key, value) in r) Keep(key, value);
-            var line = string.Join("  ", r.Select(kv => string.Create(Inv, $"{kv.Key} {kv.Value:F1}")));
+            var line = string.Join("  ", r.Select(kv => string.Create(Inv, $"{kv.Key} {kv.Value:F1} (cpu {cpu[kv.Key]:F2})")));
             Console.WriteLine($"round {round}: {line}");
             Console.WriteLine(Ratios(r, "  ratios"));
         }
@@ -117,26 +127,33 @@ public sealed class GemmBench : IBenchSuite
         }
     }
 
-    private static double Time(Action action)
+    /// <summary>Wall seconds of one call, and the process's CPU time over (wall × threads).</summary>
+    private static (double Seconds, double CpuShare) Time(Action action, int threads)
     {
+        var process = Process.GetCurrentProcess();
+        var cpu0 = process.TotalProcessorTime;
         var sw = Stopwatch.StartNew();
         action();
-        return sw.Elapsed.TotalSeconds;
+        double seconds = sw.Elapsed.TotalSeconds;
+        process.Refresh();
+        return (seconds, (process.TotalProcessorTime - cpu0).TotalSeconds / (seconds * threads));
     }
 
     /// <summary>
     /// Practical peak: each worker runs 16 independent chains of Vector512 fused multiply-adds held in registers
     /// (16 ≥ FMA latency × FMA ports, so the ports never wait), ~0.2 s per worker.
     /// </summary>
-    private static double FmaPeak(int threads)
+    private static void FmaPeak(int threads)
     {
-        const long iterations = 3_000_000;
-        if (!Avx512F.IsSupported) return double.NaN;
+        if (!Avx512F.IsSupported) return;
         var sink = new float[threads];
-        double seconds = Time(() => Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads },
-            t => sink[t] = FmaChains(iterations).ToScalar()));
-        return iterations * 16 * 16 * 2.0 * threads / seconds / 1e9;
+        Parallel.For(0, threads, new ParallelOptions { MaxDegreeOfParallelism = threads }, t => sink[t] = FmaChains(PeakIterations).ToScalar());
     }
+
+    private const long PeakIterations = 3_000_000;
+
+    /// <summary>Floating-point operations of <see cref="FmaPeak"/>: 16 chains × 16 lanes × 2 per iteration per worker.</summary>
+    private static double FmaPeakFlops(int threads) => Avx512F.IsSupported ? PeakIterations * 16 * 16 * 2.0 * threads : double.NaN;
 
     [MethodImpl(MethodImplOptions.NoInlining | MethodImplOptions.AggressiveOptimization)]
     private static Vector512<float> FmaChains(long iterations)

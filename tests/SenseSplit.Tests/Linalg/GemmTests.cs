@@ -101,6 +101,43 @@ public class GemmTests
         for (int i = 0; i < rows; i++) Assert.True(g[i * rows + i] > 0f, $"diagonal {i} of a Gram matrix must be positive");
     }
 
+    public static TheoryData<GemmKernel, int, int> PathsAndGramShapes()
+    {
+        var shapes = new (int M, int K)[] { (1, 1), (5, 17), (6, 300), (7, 3), (64, 300), (65, 300), (130, 40), (301, 300), (97, 600) };
+        var data = new TheoryData<GemmKernel, int, int>();
+        foreach (var path in new[] { GemmKernel.Avx512, GemmKernel.Avx2, GemmKernel.Scalar })
+            foreach (var (m, k) in shapes) data.Add(path, m, k);
+        return data;
+    }
+
+    [Theory]
+    [MemberData(nameof(PathsAndGramShapes))]
+    public void Gram_OddSizes_BitwiseEqualsFullProductForAnyThreadCount(GemmKernel path, int m, int k)
+    {
+        if (!SupportedOrThrows(path)) return;
+        var a = RandomMatrix(m, k, seed: 40 + m);
+        var full = new float[m * m];
+        Gemm.MultiplyTransposed(a, m, a, m, k, full, threads: 1, kernel: path);
+        AssertWithinInnerProductBound(a, a, m, m, k, full);
+        foreach (int threads in new[] { 1, 2, 3 })
+        {
+            var g = Enumerable.Repeat(float.NaN, m * m).ToArray();
+            Gemm.Gram(a, m, k, g, threads, path);
+            Assert.Equal(full, g);
+        }
+    }
+
+    [Fact]
+    public void Gram_ZeroSizes_WritesNothingOrZeros()
+    {
+        var g = new[] { float.NaN, float.NaN, float.NaN, float.NaN };
+        Gemm.Gram([], 0, 5, g);
+        Assert.All(g, v => Assert.True(float.IsNaN(v)));
+        Gemm.Gram([], 2, 0, g);
+        Assert.All(g, v => Assert.Equal(0f, v));
+        Assert.Throws<ArgumentException>(() => Gemm.Gram(new float[6], 2, 3, new float[3]));
+    }
+
     [Theory]
     [MemberData(nameof(Paths))]
     public void MultiplyTransposed_ZeroSizes_WritesNothingOrZeros(GemmKernel path)
