@@ -13,9 +13,11 @@ public enum GemmKernel { Auto, Avx512, Avx2, Scalar }
 /// multiplication", ACM TOMS 34(3), as restructured in BLIS by Van Zee and van de Geijn (2015), "BLIS: A framework for
 /// rapidly instantiating BLAS functionality", ACM TOMS 41(3): B is packed once into column panels of NR columns stored
 /// [k][NR]; a register-blocked micro-kernel computes an MR×NR tile of C as a sum of rank-1 updates over the k
-/// dimension. Deviation from the BLIS loop nest: A is not packed (its MR rows are read where they lie, which costs
-/// no copy and keeps an MR×KC sliver in L1), and the loop order inside a block is rows of A outer, B panels inner,
-/// so the packed B block (KC×NC floats) streams from L2 while the A sliver stays in L1.
+/// dimension. Deviations from the BLIS loop nest: A is not packed (its MR rows are read where they lie, which costs
+/// no copy and keeps an MR×KC sliver in L1), and inside a block the loop runs over slivers of A outer and B panels
+/// inner, so the sliver stays in L1 while the packed B block (KC×NC floats, NC = 2048) streams from L2/L3; with
+/// NC ≥ n every row of A is read from memory once. Register blocks: AVX-512 6×64 (24 zmm accumulators), AVX2 6×16
+/// (12 ymm), scalar 4×4; a last panel narrower than NR runs a kernel with fewer vectors per row.
 /// <para>Determinism: every element of C is one fused multiply-add chain over p = 0..k-1 in increasing order, cut
 /// into KC-blocks that depend on k only, so results are bitwise identical for any thread count, any position of the
 /// element inside a tile, and C[i, j] and C[j, i] of a Gram product A·Aᵀ are bitwise equal. Different
@@ -60,6 +62,39 @@ public static class Gemm
                 case GemmKernel.Avx512: GemmDriver<Avx512MicroKernel>.Run(job, threads); break;
                 case GemmKernel.Avx2: GemmDriver<Avx2MicroKernel>.Run(job, threads); break;
                 default: GemmDriver<ScalarMicroKernel>.Run(job, threads); break;
+            }
+        }
+    }
+
+    /// <summary>
+    /// G = A·Aᵀ (overwrites G): the Gram matrix G[i, j] = Σ_p A[i, p]·A[j, p] of the m rows of A (m×k), G m×m,
+    /// both row-major and dense. Computes the tiles on and below the diagonal and copies the lower triangle onto the
+    /// upper, so it does about half the work of <see cref="MultiplyTransposed(ReadOnlySpan{float}, int, ReadOnlySpan{float}, int, int, Span{float}, int, GemmKernel)"/>
+    /// with A for B, and returns bitwise the same matrix (every entry is the same fused multiply-add chain).
+    /// </summary>
+    public static unsafe void Gram(ReadOnlySpan<float> a, int m, int k, Span<float> g, int threads = 0,
+        GemmKernel kernel = GemmKernel.Auto)
+    {
+        Guard.NonNegative(m); Guard.NonNegative(k); Guard.NonNegative(threads);
+        Guard.AtLeastLength(a.Length, (long)m * k, "A");
+        Guard.AtLeastLength(g.Length, (long)m * m, "G");
+        var path = Resolve(kernel);
+        if (m == 0) return;
+        if (k == 0)
+        {
+            g[..(m * m)].Clear();
+            return;
+        }
+        if (threads == 0) threads = Environment.ProcessorCount;
+        fixed (float* pa = a)
+        fixed (float* pg = g)
+        {
+            var job = new GemmJob(pa, k, m, pa, k, m, k, pg, m);
+            switch (path)
+            {
+                case GemmKernel.Avx512: GemmDriver<Avx512MicroKernel>.Run(job, threads, lowerTriangle: true); break;
+                case GemmKernel.Avx2: GemmDriver<Avx2MicroKernel>.Run(job, threads, lowerTriangle: true); break;
+                default: GemmDriver<ScalarMicroKernel>.Run(job, threads, lowerTriangle: true); break;
             }
         }
     }

@@ -11,7 +11,15 @@ internal unsafe interface IGemmMicroKernel
 {
     static abstract int MR { get; }
     static abstract int NR { get; }
+
+    /// <summary><see cref="RunEdge"/> writes ⌈cols/EdgeStep⌉·EdgeStep columns of the tile.</summary>
+    static abstract int EdgeStep { get; }
+
     static abstract void Run(float* a, nint lda, float* bp, int kc, float* c, nint ldc, bool accumulate);
+
+    /// <summary>The same product for a panel of which only the first <paramref name="cols"/> columns exist: skips
+    /// whole vectors past them. Each element's multiply-add chain is the one <see cref="Run"/> computes.</summary>
+    static abstract void RunEdge(float* a, nint lda, float* bp, int kc, float* c, nint ldc, bool accumulate, int cols);
 }
 
 /// <summary>Pointers and shapes of one product C = A·Bᵀ (see <see cref="Gemm"/>); pinned by the caller.</summary>
@@ -32,18 +40,24 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
     /// <summary>Deepest k-slice: 512 keeps k = 300 (the embedding width) in one slice, so C is written once.</summary>
     internal const int KcMax = 512;
 
-    /// <summary>Columns per block: a 512×300 packed block (600 KB) stays in a 1 MB L2 while slivers of A pass.</summary>
-    internal const int NcBlock = 512;
+    /// <summary>
+    /// Columns per block. Measured on the 2-core EPYC (see docs/performance.md): a block that fits L2 (512 columns)
+    /// was slower than 2048 columns streamed from L3, because every block re-reads all of A; 2048 covers the 2000
+    /// atoms in one block, and a packed 2048×300 block (2.4 MB) sits in L3.
+    /// </summary>
+    internal const int NcBlock = 2048;
 
     /// <summary>Below this many multiply-adds one worker is faster than waking a second (results are the same).</summary>
     private const long SerialBelow = 1L << 20;
 
-    public static void Run(in GemmJob job, int threads)
+    /// <param name="lowerTriangle">A·Aᵀ: compute only tiles that reach the diagonal or below it, then copy the lower
+    /// triangle onto the upper one (A and B are the same matrix, so the copies are the values the tiles would give).</param>
+    public static void Run(in GemmJob job, int threads, bool lowerTriangle = false)
     {
         int mr = TKernel.MR, nr = TKernel.NR;
         int m = job.M, n = job.N, k = job.K;
         int rowUnits = (m + mr - 1) / mr, colUnits = (n + nr - 1) / nr;
-        bool byRows = rowUnits >= colUnits;
+        bool byRows = lowerTriangle || rowUnits >= colUnits;
         int units = byRows ? rowUnits : colUnits;
         int parts = (long)m * n * k < SerialBelow ? 1 : Math.Max(1, Math.Min(threads, units));
 
@@ -60,7 +74,8 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
                 if (parts == 1)
                 {
                     PackB(local, (float*)bp, 0, colUnits);
-                    Block(local, (float*)bp, 0, m, 0, n);
+                    Block(local, (float*)bp, 0, m, 0, n, lowerTriangle);
+                    if (lowerTriangle) MirrorLower(local, 0, m);
                 }
                 else
                 {
@@ -69,10 +84,13 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
                         PackB(local, (float*)bp, Share(colUnits, parts, part), Share(colUnits, parts, part + 1)));
                     Parallel.For(0, parts, options, part =>
                     {
-                        int u0 = Share(units, parts, part), u1 = Share(units, parts, part + 1);
-                        if (byRows) Block(local, (float*)bp, u0 * mr, Math.Min(m, u1 * mr), 0, n);
-                        else Block(local, (float*)bp, 0, m, u0 * nr, Math.Min(n, u1 * nr));
+                        int u0 = Share(units, parts, part, lowerTriangle), u1 = Share(units, parts, part + 1, lowerTriangle);
+                        if (byRows) Block(local, (float*)bp, u0 * mr, Math.Min(m, u1 * mr), 0, n, lowerTriangle);
+                        else Block(local, (float*)bp, 0, m, u0 * nr, Math.Min(n, u1 * nr), false);
                     });
+                    if (lowerTriangle)
+                        Parallel.For(0, parts, options, part => MirrorLower(local,
+                            Math.Min(m, Share(units, parts, part, true) * mr), Math.Min(m, Share(units, parts, part + 1, true) * mr)));
                 }
             }
         }
@@ -84,6 +102,28 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
 
     /// <summary>First unit of share <paramref name="part"/> when <paramref name="units"/> are cut into equal shares.</summary>
     private static int Share(int units, int parts, int part) => (int)((long)units * part / parts);
+
+    /// <summary>First unit of share <paramref name="part"/>; for a triangle, unit u costs ∝ u + 1, so shares of
+    /// equal area start at units·√(part/parts).</summary>
+    private static int Share(int units, int parts, int part, bool triangle)
+        => triangle ? (part >= parts ? units : (int)Math.Round(units * Math.Sqrt((double)part / parts))) : Share(units, parts, part);
+
+    /// <summary>C[j, i] = C[i, j] for rows i0 ≤ i &lt; i1 and j &lt; i, in 32-column strips so the written lines stay in L1.</summary>
+    private static void MirrorLower(in GemmJob job, int i0, int i1)
+    {
+        const int strip = 32;
+        float* c = job.C;
+        long ldc = job.Ldc;
+        for (int jb = 0; jb < i1; jb += strip)
+        {
+            for (int i = Math.Max(i0, jb + 1); i < i1; i++)
+            {
+                int jEnd = Math.Min(jb + strip, i);
+                float* row = c + i * ldc;
+                for (int j = jb; j < jEnd; j++) c[j * ldc + i] = row[j];
+            }
+        }
+    }
 
     /// <summary>Packs B rows into panels q0..q1: panel q holds rows q·NR.. as [k][NR], zero-padded past row n.</summary>
     private static void PackB(in GemmJob job, float* packed, int q0, int q1)
@@ -104,7 +144,7 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
     }
 
     /// <summary>Computes C[i0..i1, j0..j1]; i0 is a multiple of MR (or 0) and j0 a multiple of NR.</summary>
-    private static void Block(in GemmJob job, float* packed, int i0, int i1, int j0, int j1)
+    private static void Block(in GemmJob job, float* packed, int i0, int i1, int j0, int j1, bool lowerTriangle)
     {
         int mr = TKernel.MR, nr = TKernel.NR, k = job.K;
         // k-slices depend on k only, so the summation order of every element is fixed (see Gemm remarks).
@@ -135,6 +175,7 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
                     }
                     for (int j = jc; j < jcEnd; j += nr)
                     {
+                        if (lowerTriangle && j >= i + rows) break; // this tile and the rest lie above the diagonal
                         int cols = Math.Min(nr, jcEnd - j);
                         float* bp = packed + (long)(j / nr) * nr * k + (long)p0 * nr;
                         float* cp = job.C + (long)i * job.Ldc + j;
@@ -143,11 +184,16 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
                             TKernel.Run(ap, lda, bp, kc, cp, job.Ldc, accumulate);
                             continue;
                         }
+                        if (rows == mr && cols % TKernel.EdgeStep == 0)
+                        {
+                            TKernel.RunEdge(ap, lda, bp, kc, cp, job.Ldc, accumulate, cols);
+                            continue;
+                        }
                         // Edge tile: run the full kernel on a scratch tile and copy back the part that exists.
                         if (accumulate)
                             for (int r = 0; r < rows; r++)
                                 for (int s = 0; s < cols; s++) edgeC[r * nr + s] = cp[r * job.Ldc + s];
-                        TKernel.Run(ap, lda, bp, kc, edgeC, nr, accumulate);
+                        TKernel.RunEdge(ap, lda, bp, kc, edgeC, nr, accumulate, cols);
                         for (int r = 0; r < rows; r++)
                             for (int s = 0; s < cols; s++) cp[r * job.Ldc + s] = edgeC[r * nr + s];
                     }

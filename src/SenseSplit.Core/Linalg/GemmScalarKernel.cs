@@ -10,6 +10,7 @@ internal unsafe struct ScalarMicroKernel : IGemmMicroKernel
 {
     public static int MR => 4;
     public static int NR => 4;
+    public static int EdgeStep => 4;
 
     [MethodImpl(MethodImplOptions.NoInlining | MethodImplOptions.AggressiveOptimization)]
     public static void Run(float* a, nint lda, float* bp, int kc, float* c, nint ldc, bool accumulate)
@@ -43,4 +44,7 @@ internal unsafe struct ScalarMicroKernel : IGemmMicroKernel
         c += ldc; c[0] += c20; c[1] += c21; c[2] += c22; c[3] += c23;
         c += ldc; c[0] += c30; c[1] += c31; c[2] += c32; c[3] += c33;
     }
+
+    public static void RunEdge(float* a, nint lda, float* bp, int kc, float* c, nint ldc, bool accumulate, int cols)
+        => Run(a, lda, bp, kc, c, ldc, accumulate);
 }

@@ -8,14 +8,15 @@ public class GemmTests
     public static TheoryData<GemmKernel> Paths => new() { GemmKernel.Avx512, GemmKernel.Avx2, GemmKernel.Scalar };
 
     // Odd shapes: 1×1×1, register-block edges (MR = 6 or 4, NR = 64, 16 or 4, plus and minus one), the embedding
-    // width k = 300, tall-thin and wide-short (the column partition), and k above the 512-deep slice (two slices).
+    // width k = 300, tall-thin and wide-short (the column partition), k above the 512-deep slice (two slices), and
+    // last panels 16, 32 or 48 (AVX-512) and 8 (AVX2) columns wide, which take the narrow edge kernels.
     public static TheoryData<GemmKernel, int, int, int> PathsAndShapes()
     {
         var shapes = new (int M, int N, int K)[]
         {
             (1, 1, 1), (7, 13, 5), (67, 129, 300), (301, 65, 17), (5, 63, 300), (6, 64, 300), (7, 65, 300),
             (3, 15, 8), (4, 16, 8), (5, 17, 9), (12, 128, 1), (13, 127, 2), (2, 1030, 300), (11, 70, 1100),
-            (1, 600, 40), (600, 1, 40),
+            (1, 600, 40), (600, 1, 40), (12, 80, 300), (6, 96, 7), (18, 112, 33), (6, 40, 9), (13, 2000, 20),
         };
         var data = new TheoryData<GemmKernel, int, int, int>();
         foreach (var path in new[] { GemmKernel.Avx512, GemmKernel.Avx2, GemmKernel.Scalar })
@@ -98,6 +99,43 @@ public class GemmTests
         for (int i = 0; i < rows; i++)
             for (int j = 0; j < i; j++) Assert.Equal(g[i * rows + j], g[j * rows + i]);
         for (int i = 0; i < rows; i++) Assert.True(g[i * rows + i] > 0f, $"diagonal {i} of a Gram matrix must be positive");
+    }
+
+    public static TheoryData<GemmKernel, int, int> PathsAndGramShapes()
+    {
+        var shapes = new (int M, int K)[] { (1, 1), (5, 17), (6, 300), (7, 3), (64, 300), (65, 300), (130, 40), (301, 300), (97, 600) };
+        var data = new TheoryData<GemmKernel, int, int>();
+        foreach (var path in new[] { GemmKernel.Avx512, GemmKernel.Avx2, GemmKernel.Scalar })
+            foreach (var (m, k) in shapes) data.Add(path, m, k);
+        return data;
+    }
+
+    [Theory]
+    [MemberData(nameof(PathsAndGramShapes))]
+    public void Gram_OddSizes_BitwiseEqualsFullProductForAnyThreadCount(GemmKernel path, int m, int k)
+    {
+        if (!SupportedOrThrows(path)) return;
+        var a = RandomMatrix(m, k, seed: 40 + m);
+        var full = new float[m * m];
+        Gemm.MultiplyTransposed(a, m, a, m, k, full, threads: 1, kernel: path);
+        AssertWithinInnerProductBound(a, a, m, m, k, full);
+        foreach (int threads in new[] { 1, 2, 3 })
+        {
+            var g = Enumerable.Repeat(float.NaN, m * m).ToArray();
+            Gemm.Gram(a, m, k, g, threads, path);
+            Assert.Equal(full, g);
+        }
+    }
+
+    [Fact]
+    public void Gram_ZeroSizes_WritesNothingOrZeros()
+    {
+        var g = new[] { float.NaN, float.NaN, float.NaN, float.NaN };
+        Gemm.Gram([], 0, 5, g);
+        Assert.All(g, v => Assert.True(float.IsNaN(v)));
+        Gemm.Gram([], 2, 0, g);
+        Assert.All(g, v => Assert.Equal(0f, v));
+        Assert.Throws<ArgumentException>(() => Gemm.Gram(new float[6], 2, 3, new float[3]));
     }
 
     [Theory]
