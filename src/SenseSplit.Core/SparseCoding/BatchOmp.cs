@@ -130,7 +130,8 @@ public static class BatchOmp
     internal sealed class Scratch
     {
         public readonly float[] Correlations; // blockRows×atomCount: α⁰ of each row of the block
-        public readonly float[] Alpha;        // atomCount: current residual correlations α
+        public readonly float[] NegGamma;     // sparsity: −γ_I as float for the selection kernel
+        public readonly nint[] RowPointers;   // sparsity: addresses of the selected rows of G
         public readonly double[] Chol;        // sparsity×sparsity lower-triangular L with L·Lᵀ = G_II
         public readonly double[] Gamma;       // sparsity: least-squares weights γ_I
         public readonly double[] Work;        // sparsity: w = L⁻¹ G_{I,k}, then the forward-substitution result
@@ -140,7 +141,8 @@ public static class BatchOmp
         public Scratch(int blockRows, int atomCount, int sparsity, int dims)
         {
             Correlations = new float[blockRows * atomCount];
-            Alpha = new float[atomCount];
+            NegGamma = new float[sparsity];
+            RowPointers = new nint[sparsity];
             Chol = new double[sparsity * sparsity];
             Gamma = new double[sparsity];
             Work = new double[sparsity];
@@ -186,78 +188,78 @@ public static class BatchOmp
             ids.Fill(-1);
             ws.Clear();
 
-            double xx = 0;
-            foreach (float v in xRow) xx += (double)v * v;
+            double xx = OmpKernels.SquaredNorm(xRow);
             if (xx == 0) { residualNorms[row] = 0; return; } // zero row: empty code, zero residual
 
-            var alpha = s.Alpha.AsSpan();
             var L = s.Chol;
             var gamma = s.Gamma;
             var w = s.Work;
             var support = s.Support;
-            alpha0.CopyTo(alpha);
             int n = 0;
-            while (n < sparsity)
+            fixed (float* g = gram)
+            fixed (float* a0 = alpha0)
+            fixed (float* negGamma = s.NegGamma)
+            fixed (nint* rowPtrs = s.RowPointers)
             {
-                int k = TensorPrimitives.IndexOfMaxMagnitude((ReadOnlySpan<float>)alpha);
-                // All residual correlations zero: the residual is orthogonal to every atom, nothing left to fit.
-                if (alpha[k] == 0f) break;
-                double gkk = gram[(long)k * atomCount + k];
-                if (n == 0)
+                float** rowsOfG = (float**)rowPtrs;
+                while (n < sparsity)
                 {
-                    L[0] = Math.Sqrt(gkk);
-                }
-                else
-                {
-                    // Progressive Cholesky (report eq. 3.3): solve L w = G_{I,k}; the new row of L is [wᵀ, √(G_kk − wᵀw)].
-                    double ww = 0;
+                    // k = argmax |α| with α = α⁰ − G_{:,I} γ_I (report eq. 3.4), fused into one pass (OmpKernels);
+                    // G is symmetric, so column I_r is the contiguous row I_r.
+                    int k = OmpKernels.ArgMaxAbsUpdated(a0, atomCount, rowsOfG, negGamma, n, out float bestAbs);
+                    // All residual correlations zero: the residual is orthogonal to every atom, nothing left to fit.
+                    // In exact arithmetic α_I = 0; if a selected atom still wins, every |α_k| is at rounding level.
+                    if (bestAbs == 0f || support[..n].Contains(k)) break;
+                    double gkk = g[(long)k * atomCount + k];
+                    if (n == 0)
+                    {
+                        L[0] = Math.Sqrt(gkk);
+                    }
+                    else
+                    {
+                        // Progressive Cholesky (report eq. 3.3): solve L w = G_{I,k}; the new row of L is
+                        // [wᵀ, √(G_kk − wᵀw)]. G_{I_r,k} is read as G_{k,I_r} (symmetry): one row, already cached.
+                        float* gk = g + (long)k * atomCount;
+                        double ww = 0;
+                        for (int r = 0; r < n; r++)
+                        {
+                            double sum = gk[support[r]];
+                            for (int c = 0; c < r; c++) sum -= L[r * sparsity + c] * w[c];
+                            w[r] = sum / L[r * sparsity + r];
+                            ww += w[r] * w[r];
+                        }
+                        double diag2 = gkk - ww;
+                        // Linear dependence: d_k (almost) lies in the span of the selected atoms; adding it would make
+                        // G_II singular. Stop with the current support (see DependenceThreshold).
+                        if (diag2 <= DependenceThreshold * gkk) break;
+                        for (int c = 0; c < n; c++) L[n * sparsity + c] = w[c];
+                        L[n * sparsity + n] = Math.Sqrt(diag2);
+                    }
+                    support[n] = k;
+                    rowsOfG[n] = g + (long)k * atomCount;
+                    n++;
+
+                    // γ_I solves L Lᵀ γ = α⁰_I: forward substitution into w, then back substitution into γ.
                     for (int r = 0; r < n; r++)
                     {
-                        double sum = gram[(long)support[r] * atomCount + k];
+                        double sum = a0[support[r]];
                         for (int c = 0; c < r; c++) sum -= L[r * sparsity + c] * w[c];
                         w[r] = sum / L[r * sparsity + r];
-                        ww += w[r] * w[r];
                     }
-                    double diag2 = gkk - ww;
-                    // Linear dependence: d_k (almost) lies in the span of the selected atoms; adding it would make
-                    // G_II singular. Stop with the current support (see DependenceThreshold).
-                    if (diag2 <= DependenceThreshold * gkk) break;
-                    for (int c = 0; c < n; c++) L[n * sparsity + c] = w[c];
-                    L[n * sparsity + n] = Math.Sqrt(diag2);
-                }
-                support[n] = k;
-                n++;
+                    for (int r = n - 1; r >= 0; r--)
+                    {
+                        double sum = w[r];
+                        for (int c = r + 1; c < n; c++) sum -= L[c * sparsity + r] * gamma[c];
+                        gamma[r] = sum / L[r * sparsity + r];
+                    }
+                    if (n == sparsity) break;
 
-                // γ_I solves L Lᵀ γ = α⁰_I: forward substitution into w, then back substitution into γ.
-                for (int r = 0; r < n; r++)
-                {
-                    double sum = alpha0[support[r]];
-                    for (int c = 0; c < r; c++) sum -= L[r * sparsity + c] * w[c];
-                    w[r] = sum / L[r * sparsity + r];
+                    // Residual energy: ||x − D_I γ||² = ||x||² − γᵀα⁰_I because G_II γ = α⁰_I (normal equations).
+                    double fit = 0;
+                    for (int r = 0; r < n; r++) fit += gamma[r] * a0[support[r]];
+                    if (xx - fit <= ExactThreshold * xx) break; // exactly representable (see ExactThreshold)
+                    for (int r = 0; r < n; r++) negGamma[r] = (float)-gamma[r];
                 }
-                for (int r = n - 1; r >= 0; r--)
-                {
-                    double sum = w[r];
-                    for (int c = r + 1; c < n; c++) sum -= L[c * sparsity + r] * gamma[c];
-                    gamma[r] = sum / L[r * sparsity + r];
-                }
-                if (n == sparsity) break;
-
-                // Residual energy: ||x − D_I γ||² = ||x||² − γᵀα⁰_I because G_II γ = α⁰_I (normal equations).
-                double fit = 0;
-                for (int r = 0; r < n; r++) fit += gamma[r] * alpha0[support[r]];
-                if (xx - fit <= ExactThreshold * xx) break; // exactly representable (see ExactThreshold)
-
-                // α = α⁰ − G_{:,I} γ_I (report eq. 3.4); G is symmetric, so column I_r is the contiguous row I_r.
-                alpha0.CopyTo(alpha);
-                for (int r = 0; r < n; r++)
-                {
-                    var gRow = new ReadOnlySpan<float>(gram, support[r] * atomCount, atomCount);
-                    TensorPrimitives.MultiplyAdd(gRow, (float)-gamma[r], alpha, alpha);
-                }
-                // In exact arithmetic α_I = 0 (the residual is orthogonal to the selected atoms); set it so rounding
-                // cannot make OMP pick a selected atom again.
-                for (int r = 0; r < n; r++) alpha[support[r]] = 0f;
             }
 
             // Exact residual norm from the residual vector itself (the energy formula above loses precision when the
@@ -270,9 +272,7 @@ public static class BatchOmp
                 ws[r] = (float)gamma[r];
                 TensorPrimitives.MultiplyAdd(new ReadOnlySpan<float>(d + (long)support[r] * dims, dims), -ws[r], res, res);
             }
-            double rr = 0;
-            foreach (float v in res) rr += (double)v * v;
-            residualNorms[row] = (float)Math.Sqrt(rr);
+            residualNorms[row] = (float)Math.Sqrt(OmpKernels.SquaredNorm(res));
         }
     }
 }
