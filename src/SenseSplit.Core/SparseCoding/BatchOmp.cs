@@ -99,31 +99,43 @@ public static class BatchOmp
     internal static int ResolveThreads(int threads) => threads == 0 ? Environment.ProcessorCount : threads;
 
     /// <summary>Trusted core of <see cref="Encode(ReadOnlySpan{float}, int, int, ReadOnlySpan{float}, int, int, int, float[])"/>:
-    /// arguments already validated; writes codes and residual norms into the given arrays.</summary>
+    /// arguments already validated; writes codes and residual norms into the given arrays. <paramref name="scratch"/>
+    /// (from <see cref="CreateScratch"/> for the same sizes) is reused when given, so repeated calls allocate nothing.</summary>
     internal static unsafe void EncodeInto(ReadOnlySpan<float> vectors, int rows, int dims, ReadOnlySpan<float> atoms,
         int atomCount, int sparsity, float[] gram, int[] atomIds, float[] weights, float[] residualNorms,
-        int threads, CancellationToken cancellation)
+        int threads, CancellationToken cancellation, Scratch[]? scratch = null)
     {
         if (rows == 0) return;
         int blockRows = BlockRows(rows);
         int blocks = (rows + blockRows - 1) / blockRows;
         int workers = Math.Min(ResolveThreads(threads), blocks);
+        scratch ??= CreateScratch(rows, dims, atomCount, sparsity, workers);
         fixed (float* xPtr = vectors)
         fixed (float* dPtr = atoms)
         {
             var job = new Job(xPtr, dPtr, rows, dims, atomCount, sparsity, gram, atomIds, weights, residualNorms, blockRows);
             int next = -1;
-            void Work()
+            void Work(int worker)
             {
-                var scratch = new Scratch(blockRows, atomCount, sparsity, dims);
+                var own = scratch[worker];
                 int b;
                 while (!cancellation.IsCancellationRequested && (b = Interlocked.Increment(ref next)) < blocks)
-                    job.CodeBlock(b, scratch);
+                    job.CodeBlock(b, own);
             }
-            if (workers <= 1) Work();
-            else Parallel.For(0, workers, new ParallelOptions { MaxDegreeOfParallelism = workers }, _ => Work());
+            if (workers <= 1) Work(0);
+            else Parallel.For(0, workers, new ParallelOptions { MaxDegreeOfParallelism = workers }, Work);
         }
         cancellation.ThrowIfCancellationRequested();
+    }
+
+    /// <summary>One scratch set per worker for coding <paramref name="rows"/> rows with <paramref name="threads"/> workers.</summary>
+    internal static Scratch[] CreateScratch(int rows, int dims, int atomCount, int sparsity, int threads)
+    {
+        int blockRows = BlockRows(Math.Max(rows, 1));
+        int workers = Math.Max(1, Math.Min(ResolveThreads(threads), (rows + blockRows - 1) / blockRows));
+        var pool = new Scratch[workers];
+        for (int w = 0; w < workers; w++) pool[w] = new Scratch(blockRows, atomCount, sparsity, dims);
+        return pool;
     }
 
     /// <summary>Per-worker scratch, allocated once per call and reused for every block and row.</summary>

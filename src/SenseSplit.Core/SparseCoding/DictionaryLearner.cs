@@ -136,6 +136,7 @@ public static class DictionaryLearner
             var errors = new List<double>();
             var replacedPerRound = new List<int>();
             var scratch = new UpdateScratch(rows, k, s, dims);
+            var coding = BatchOmp.CreateScratch(rows, dims, k, s, threads);
 
             int round = 0;
             bool converged = false;
@@ -145,7 +146,7 @@ public static class DictionaryLearner
             {
                 round++;
                 observer?.Phase(round, LearningPhase.Coding);
-                BatchOmp.EncodeInto(vectors, rows, dims, atoms, k, s, gram, ids, weights, residual, threads, cancellation);
+                BatchOmp.EncodeInto(vectors, rows, dims, atoms, k, s, gram, ids, weights, residual, threads, cancellation, coding);
                 error = RelativeError(residual, normX);
                 errors.Add(error);
                 if (round > 1 && options.Tolerance > 0)
@@ -175,7 +176,7 @@ public static class DictionaryLearner
                 {
                     // The atoms changed after the last coding: code once more so the codes match the returned atoms.
                     observer?.Phase(round + 1, LearningPhase.Coding);
-                    BatchOmp.EncodeInto(vectors, rows, dims, atoms, k, s, gram, ids, weights, residual, threads, cancellation);
+                    BatchOmp.EncodeInto(vectors, rows, dims, atoms, k, s, gram, ids, weights, residual, threads, cancellation, coding);
                     error = RelativeError(residual, normX);
                     reason = $"reached the maximum of {options.MaxRounds} rounds";
                     break;
