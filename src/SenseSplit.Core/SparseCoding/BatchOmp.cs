@@ -99,38 +99,51 @@ public static class BatchOmp
     internal static int ResolveThreads(int threads) => threads == 0 ? Environment.ProcessorCount : threads;
 
     /// <summary>Trusted core of <see cref="Encode(ReadOnlySpan{float}, int, int, ReadOnlySpan{float}, int, int, int, float[])"/>:
-    /// arguments already validated; writes codes and residual norms into the given arrays.</summary>
+    /// arguments already validated; writes codes and residual norms into the given arrays. <paramref name="scratch"/>
+    /// (from <see cref="CreateScratch"/> for the same sizes) is reused when given, so repeated calls allocate nothing.</summary>
     internal static unsafe void EncodeInto(ReadOnlySpan<float> vectors, int rows, int dims, ReadOnlySpan<float> atoms,
         int atomCount, int sparsity, float[] gram, int[] atomIds, float[] weights, float[] residualNorms,
-        int threads, CancellationToken cancellation)
+        int threads, CancellationToken cancellation, Scratch[]? scratch = null)
     {
         if (rows == 0) return;
         int blockRows = BlockRows(rows);
         int blocks = (rows + blockRows - 1) / blockRows;
         int workers = Math.Min(ResolveThreads(threads), blocks);
+        scratch ??= CreateScratch(rows, dims, atomCount, sparsity, workers);
         fixed (float* xPtr = vectors)
         fixed (float* dPtr = atoms)
         {
             var job = new Job(xPtr, dPtr, rows, dims, atomCount, sparsity, gram, atomIds, weights, residualNorms, blockRows);
             int next = -1;
-            void Work()
+            void Work(int worker)
             {
-                var scratch = new Scratch(blockRows, atomCount, sparsity, dims);
+                var own = scratch[worker];
                 int b;
                 while (!cancellation.IsCancellationRequested && (b = Interlocked.Increment(ref next)) < blocks)
-                    job.CodeBlock(b, scratch);
+                    job.CodeBlock(b, own);
             }
-            if (workers <= 1) Work();
-            else Parallel.For(0, workers, new ParallelOptions { MaxDegreeOfParallelism = workers }, _ => Work());
+            if (workers <= 1) Work(0);
+            else Parallel.For(0, workers, new ParallelOptions { MaxDegreeOfParallelism = workers }, Work);
         }
         cancellation.ThrowIfCancellationRequested();
+    }
+
+    /// <summary>One scratch set per worker for coding <paramref name="rows"/> rows with <paramref name="threads"/> workers.</summary>
+    internal static Scratch[] CreateScratch(int rows, int dims, int atomCount, int sparsity, int threads)
+    {
+        int blockRows = BlockRows(Math.Max(rows, 1));
+        int workers = Math.Max(1, Math.Min(ResolveThreads(threads), (rows + blockRows - 1) / blockRows));
+        var pool = new Scratch[workers];
+        for (int w = 0; w < workers; w++) pool[w] = new Scratch(blockRows, atomCount, sparsity, dims);
+        return pool;
     }
 
     /// <summary>Per-worker scratch, allocated once per call and reused for every block and row.</summary>
     internal sealed class Scratch
     {
         public readonly float[] Correlations; // blockRows×atomCount: α⁰ of each row of the block
-        public readonly float[] Alpha;        // atomCount: current residual correlations α
+        public readonly float[] NegGamma;     // sparsity: −γ_I as float for the selection kernel
+        public readonly nint[] RowPointers;   // sparsity: addresses of the selected rows of G
         public readonly double[] Chol;        // sparsity×sparsity lower-triangular L with L·Lᵀ = G_II
         public readonly double[] Gamma;       // sparsity: least-squares weights γ_I
         public readonly double[] Work;        // sparsity: w = L⁻¹ G_{I,k}, then the forward-substitution result
@@ -140,7 +153,8 @@ public static class BatchOmp
         public Scratch(int blockRows, int atomCount, int sparsity, int dims)
         {
             Correlations = new float[blockRows * atomCount];
-            Alpha = new float[atomCount];
+            NegGamma = new float[sparsity];
+            RowPointers = new nint[sparsity];
             Chol = new double[sparsity * sparsity];
             Gamma = new double[sparsity];
             Work = new double[sparsity];
@@ -186,78 +200,78 @@ public static class BatchOmp
             ids.Fill(-1);
             ws.Clear();
 
-            double xx = 0;
-            foreach (float v in xRow) xx += (double)v * v;
+            double xx = OmpKernels.SquaredNorm(xRow);
             if (xx == 0) { residualNorms[row] = 0; return; } // zero row: empty code, zero residual
 
-            var alpha = s.Alpha.AsSpan();
             var L = s.Chol;
             var gamma = s.Gamma;
             var w = s.Work;
             var support = s.Support;
-            alpha0.CopyTo(alpha);
             int n = 0;
-            while (n < sparsity)
+            fixed (float* g = gram)
+            fixed (float* a0 = alpha0)
+            fixed (float* negGamma = s.NegGamma)
+            fixed (nint* rowPtrs = s.RowPointers)
             {
-                int k = TensorPrimitives.IndexOfMaxMagnitude((ReadOnlySpan<float>)alpha);
-                // All residual correlations zero: the residual is orthogonal to every atom, nothing left to fit.
-                if (alpha[k] == 0f) break;
-                double gkk = gram[(long)k * atomCount + k];
-                if (n == 0)
+                float** rowsOfG = (float**)rowPtrs;
+                while (n < sparsity)
                 {
-                    L[0] = Math.Sqrt(gkk);
-                }
-                else
-                {
-                    // Progressive Cholesky (report eq. 3.3): solve L w = G_{I,k}; the new row of L is [wᵀ, √(G_kk − wᵀw)].
-                    double ww = 0;
+                    // k = argmax |α| with α = α⁰ − G_{:,I} γ_I (report eq. 3.4), fused into one pass (OmpKernels);
+                    // G is symmetric, so column I_r is the contiguous row I_r.
+                    int k = OmpKernels.ArgMaxAbsUpdated(a0, atomCount, rowsOfG, negGamma, n, out float bestAbs);
+                    // All residual correlations zero: the residual is orthogonal to every atom, nothing left to fit.
+                    // In exact arithmetic α_I = 0; if a selected atom still wins, every |α_k| is at rounding level.
+                    if (bestAbs == 0f || support[..n].Contains(k)) break;
+                    double gkk = g[(long)k * atomCount + k];
+                    if (n == 0)
+                    {
+                        L[0] = Math.Sqrt(gkk);
+                    }
+                    else
+                    {
+                        // Progressive Cholesky (report eq. 3.3): solve L w = G_{I,k}; the new row of L is
+                        // [wᵀ, √(G_kk − wᵀw)]. G_{I_r,k} is read as G_{k,I_r} (symmetry): one row, already cached.
+                        float* gk = g + (long)k * atomCount;
+                        double ww = 0;
+                        for (int r = 0; r < n; r++)
+                        {
+                            double sum = gk[support[r]];
+                            for (int c = 0; c < r; c++) sum -= L[r * sparsity + c] * w[c];
+                            w[r] = sum / L[r * sparsity + r];
+                            ww += w[r] * w[r];
+                        }
+                        double diag2 = gkk - ww;
+                        // Linear dependence: d_k (almost) lies in the span of the selected atoms; adding it would make
+                        // G_II singular. Stop with the current support (see DependenceThreshold).
+                        if (diag2 <= DependenceThreshold * gkk) break;
+                        for (int c = 0; c < n; c++) L[n * sparsity + c] = w[c];
+                        L[n * sparsity + n] = Math.Sqrt(diag2);
+                    }
+                    support[n] = k;
+                    rowsOfG[n] = g + (long)k * atomCount;
+                    n++;
+
+                    // γ_I solves L Lᵀ γ = α⁰_I: forward substitution into w, then back substitution into γ.
                     for (int r = 0; r < n; r++)
                     {
-                        double sum = gram[(long)support[r] * atomCount + k];
+                        double sum = a0[support[r]];
                         for (int c = 0; c < r; c++) sum -= L[r * sparsity + c] * w[c];
                         w[r] = sum / L[r * sparsity + r];
-                        ww += w[r] * w[r];
                     }
-                    double diag2 = gkk - ww;
-                    // Linear dependence: d_k (almost) lies in the span of the selected atoms; adding it would make
-                    // G_II singular. Stop with the current support (see DependenceThreshold).
-                    if (diag2 <= DependenceThreshold * gkk) break;
-                    for (int c = 0; c < n; c++) L[n * sparsity + c] = w[c];
-                    L[n * sparsity + n] = Math.Sqrt(diag2);
-                }
-                support[n] = k;
-                n++;
+                    for (int r = n - 1; r >= 0; r--)
+                    {
+                        double sum = w[r];
+                        for (int c = r + 1; c < n; c++) sum -= L[c * sparsity + r] * gamma[c];
+                        gamma[r] = sum / L[r * sparsity + r];
+                    }
+                    if (n == sparsity) break;
 
-                // γ_I solves L Lᵀ γ = α⁰_I: forward substitution into w, then back substitution into γ.
-                for (int r = 0; r < n; r++)
-                {
-                    double sum = alpha0[support[r]];
-                    for (int c = 0; c < r; c++) sum -= L[r * sparsity + c] * w[c];
-                    w[r] = sum / L[r * sparsity + r];
+                    // Residual energy: ||x − D_I γ||² = ||x||² − γᵀα⁰_I because G_II γ = α⁰_I (normal equations).
+                    double fit = 0;
+                    for (int r = 0; r < n; r++) fit += gamma[r] * a0[support[r]];
+                    if (xx - fit <= ExactThreshold * xx) break; // exactly representable (see ExactThreshold)
+                    for (int r = 0; r < n; r++) negGamma[r] = (float)-gamma[r];
                 }
-                for (int r = n - 1; r >= 0; r--)
-                {
-                    double sum = w[r];
-                    for (int c = r + 1; c < n; c++) sum -= L[c * sparsity + r] * gamma[c];
-                    gamma[r] = sum / L[r * sparsity + r];
-                }
-                if (n == sparsity) break;
-
-                // Residual energy: ||x − D_I γ||² = ||x||² − γᵀα⁰_I because G_II γ = α⁰_I (normal equations).
-                double fit = 0;
-                for (int r = 0; r < n; r++) fit += gamma[r] * alpha0[support[r]];
-                if (xx - fit <= ExactThreshold * xx) break; // exactly representable (see ExactThreshold)
-
-                // α = α⁰ − G_{:,I} γ_I (report eq. 3.4); G is symmetric, so column I_r is the contiguous row I_r.
-                alpha0.CopyTo(alpha);
-                for (int r = 0; r < n; r++)
-                {
-                    var gRow = new ReadOnlySpan<float>(gram, support[r] * atomCount, atomCount);
-                    TensorPrimitives.MultiplyAdd(gRow, (float)-gamma[r], alpha, alpha);
-                }
-                // In exact arithmetic α_I = 0 (the residual is orthogonal to the selected atoms); set it so rounding
-                // cannot make OMP pick a selected atom again.
-                for (int r = 0; r < n; r++) alpha[support[r]] = 0f;
             }
 
             // Exact residual norm from the residual vector itself (the energy formula above loses precision when the
@@ -270,9 +284,7 @@ public static class BatchOmp
                 ws[r] = (float)gamma[r];
                 TensorPrimitives.MultiplyAdd(new ReadOnlySpan<float>(d + (long)support[r] * dims, dims), -ws[r], res, res);
             }
-            double rr = 0;
-            foreach (float v in res) rr += (double)v * v;
-            residualNorms[row] = (float)Math.Sqrt(rr);
+            residualNorms[row] = (float)Math.Sqrt(OmpKernels.SquaredNorm(res));
         }
     }
 }
