@@ -160,8 +160,10 @@ internal static class NpyFile
         return values;
     }
 
-    /// <summary>Writes a 2-D C-order little-endian array with a version 1.0 header, exactly as numpy.save lays it out
-    /// (header padded with spaces so that the data starts at a multiple of 64 bytes, ending in a newline).</summary>
+    /// <summary>Writes a 2-D C-order little-endian array with a version 1.0 header laid out byte for byte as
+    /// numpy.save (numpy 1.24, numpy/lib/format.py) does: the dict with keys in sorted order, spare spaces so the first
+    /// axis can grow in place (21 minus the digits of the row count), then space padding and a newline so that the
+    /// data starts at a multiple of 64 bytes.</summary>
     public static void WriteMatrix<T>(Stream stream, ReadOnlySpan<T> values, int rows, int columns) where T : unmanaged
     {
         if (!BitConverter.IsLittleEndian) throw new PlatformNotSupportedException(".npy writing assumes a little-endian machine");
@@ -174,15 +176,18 @@ internal static class NpyFile
 
     internal static byte[] HeaderBytes(string descr, long rows, long columns)
     {
-        string dict = $"{{'descr': '{descr}', 'fortran_order': False, 'shape': ({rows.ToString(CultureInfo.InvariantCulture)}, {columns.ToString(CultureInfo.InvariantCulture)}), }}";
-        int unpadded = 10 + dict.Length + 1; // magic + version + uint16 length + dict + '\n'
-        int padding = (64 - unpadded % 64) % 64;
+        const int GrowthDigits = 21, Align = 64, Prefix = 10; // magic (6) + version (2) + uint16 header length (2)
+        string rowText = rows.ToString(CultureInfo.InvariantCulture);
+        string dict = $"{{'descr': '{descr}', 'fortran_order': False, 'shape': ({rowText}, {columns.ToString(CultureInfo.InvariantCulture)}), }}"
+            + new string(' ', Math.Max(0, GrowthDigits - rowText.Length));
+        int withNewline = dict.Length + 1;
+        int padding = Align - (Prefix + withNewline) % Align; // 1..64, as numpy computes it
         string header = dict + new string(' ', padding) + "\n";
-        var bytes = new byte[10 + header.Length];
+        var bytes = new byte[Prefix + header.Length];
         Magic.CopyTo(bytes);
         bytes[6] = 1; bytes[7] = 0;
         BinaryPrimitives.WriteUInt16LittleEndian(bytes.AsSpan(8, 2), (ushort)header.Length);
-        Encoding.ASCII.GetBytes(header, bytes.AsSpan(10));
+        Encoding.ASCII.GetBytes(header, bytes.AsSpan(Prefix));
         return bytes;
     }
 

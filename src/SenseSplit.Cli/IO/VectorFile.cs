@@ -27,6 +27,7 @@ public static class VectorFile
     /// <param name="warn">Receives warnings (skipped rows); processing continues.</param>
     public static VectorLoad Read(string path, string? wordsPath = null, Action<string>? warn = null, CancellationToken cancellation = default)
     {
+        cancellation.ThrowIfCancellationRequested();
         if (Directory.Exists(path)) throw new UserFacingException($"{path}: is a folder, not a vectors file");
         bool gzip, npy;
         long length;
@@ -94,6 +95,8 @@ public static class VectorFile
     {
         var header = NpyFile.ReadHeader(stream, path);
         var (rowCount, dims) = NpyFile.RequireMatrix(header, path);
+        if (header.Type is not (NpyType.Float32 or NpyType.Float64))
+            throw new UserFacingException($"{path}: holds integers; expected float32 ('<f4') or float64 ('<f8') vectors");
         if (rowCount == 0 || dims == 0)
             throw new UserFacingException($"{path}: has shape {header.ShapeText}; it contains no vectors");
         var words = WordListFile.Read(wordsPath, cancellation);
