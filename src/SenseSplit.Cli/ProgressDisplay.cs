@@ -17,7 +17,7 @@ public sealed class ProgressDisplay
     private readonly TimeSpan _plainInterval;
     private readonly Lock _lock = new();
     private TimeSpan _stageStart;
-    private TimeSpan _lastDraw = TimeSpan.MinValue;
+    private TimeSpan? _lastDraw; // null: nothing drawn in this stage yet
     private string? _stage;
     private int _liveLength; // characters of the live line currently on screen (terminal mode)
 
@@ -55,7 +55,7 @@ public sealed class ProgressDisplay
             ClearLive();
             _stage = name;
             _stageStart = _clock();
-            _lastDraw = TimeSpan.MinValue;
+            _lastDraw = null;
             _err.WriteLine($"{name}...");
         }
     }
@@ -81,15 +81,17 @@ public sealed class ProgressDisplay
         {
             var now = _clock();
             bool last = done >= total;
-            if (Interactive ? (!last && now - _lastDraw < RedrawInterval) : (!last && _lastDraw != TimeSpan.MinValue && now - _lastDraw < _plainInterval))
+            var interval = Interactive ? RedrawInterval : _plainInterval;
+            if (!last && _lastDraw is { } previous && now - previous < interval)
                 return;
             _lastDraw = now;
             string line = FormatUpdate(unit, done, total, detail, now - _stageStart, now);
             if (Interactive)
             {
                 _err.Write('\r');
-                _err.Write(line.PadRight(_liveLength));
-                _liveLength = line.Length;
+                int width = Math.Max(line.Length, _liveLength); // pad over what a longer earlier draw left on screen
+                _err.Write(line.PadRight(width));
+                _liveLength = width;
                 _err.Flush();
             }
             else

@@ -17,48 +17,68 @@ public static class AtomsCommand
 {
     public static Command Create(CliContext context)
     {
-        var defaults = new DictionaryOptions();
-        var vectors = new Option<string>("--vectors")
-        {
-            Description = "Word vectors: plain text (one word and its numbers per line, optional 'count dimension' first line, optionally gzip-compressed) or a NumPy .npy matrix (float32/float64) with --words.",
-            Required = true,
-        };
-        var output = new Option<string>("--out")
-        {
-            Description = "Model folder to write (created, or replaced if it is an existing model folder; written completely before it replaces anything).",
-            Required = true,
-        };
-        var words = new Option<string?>("--words") { Description = "Words file for .npy vectors: one word per line, in row order." };
-        var counts = new Option<string?>("--counts") { Description = "Word counts: 'word<TAB>count' lines, or CSV with a 'word,count' header. Words without a count get 0." };
-        var atoms = new Option<int>("--atoms") { Description = "Number of atoms to learn.", DefaultValueFactory = _ => defaults.Atoms };
-        var sparsity = new Option<int>("--sparsity") { Description = "Most atoms per word.", DefaultValueFactory = _ => defaults.Sparsity };
-        var rounds = new Option<int>("--rounds") { Description = "Most learning rounds.", DefaultValueFactory = _ => defaults.MaxRounds };
-        var tolerance = new Option<double>("--tolerance") { Description = "Stop when the relative error improves by less than this fraction between rounds.", DefaultValueFactory = _ => defaults.Tolerance };
-        var seed = new Option<int>("--seed") { Description = "Random seed; the same seed and input give the same atoms.", DefaultValueFactory = _ => defaults.Seed };
-        var threads = new Option<int>("--threads") { Description = "Worker threads; 0 uses every core. Results do not depend on it.", DefaultValueFactory = _ => defaults.Threads };
-        var removeTop = new Option<int>("--remove-top") { Description = "Subtract the mean vector and remove this many top principal components before learning; 0 does neither. Rows are always scaled to unit length.", DefaultValueFactory = _ => 0 };
-
+        var options = new AtomsOptions();
         var command = new Command("atoms", "Learn a dictionary of unit discourse atoms so that every word vector is a sparse combination of a few of them.");
-        foreach (var o in new Option[] { vectors, output, words, counts, atoms, sparsity, rounds, tolerance, seed, threads, removeTop })
-            command.Options.Add(o);
+        foreach (var o in options.All) command.Options.Add(o);
         command.SetAction(parse =>
         {
-            var settings = new AtomsSettings(
-                parse.GetValue(vectors)!, parse.GetValue(output)!, parse.GetValue(words), parse.GetValue(counts),
-                new DictionaryOptions
-                {
-                    Atoms = parse.GetValue(atoms),
-                    Sparsity = parse.GetValue(sparsity),
-                    MaxRounds = parse.GetValue(rounds),
-                    Tolerance = parse.GetValue(tolerance),
-                    Seed = parse.GetValue(seed),
-                    Threads = parse.GetValue(threads),
-                },
-                parse.GetValue(removeTop));
+            var settings = options.Bind(parse);
             using var interrupt = new ProgressInterrupt();
             return Run(settings, context, ProgressDisplay.For(context), interrupt.Token);
         });
         return command;
+    }
+
+    /// <summary>Parses an atoms command line into settings without running anything (for tests and tooling).</summary>
+    internal static AtomsSettings ParseSettings(params string[] args)
+    {
+        var options = new AtomsOptions();
+        var command = new Command("atoms");
+        foreach (var o in options.All) command.Options.Add(o);
+        var parse = command.Parse(args);
+        if (parse.Errors.Count > 0)
+            throw new UserFacingException(string.Join("; ", parse.Errors.Select(e => e.Message)), ExitCodes.Usage);
+        return options.Bind(parse);
+    }
+
+    private sealed class AtomsOptions
+    {
+        private static readonly DictionaryOptions Defaults = new();
+
+        public readonly Option<string> Vectors = new("--vectors")
+        { HelpName = "FILE",
+            Description = "Word vectors: plain text (one word and its numbers per line, optional 'count dimension' first line, optionally gzip-compressed) or a NumPy .npy matrix (float32/float64) with --words.",
+            Required = true,
+        };
+        public readonly Option<string> Out = new("--out")
+        { HelpName = "DIR",
+            Description = "Model folder to write (created, or replaced if it is an existing model folder; written completely before it replaces anything).",
+            Required = true,
+        };
+        public readonly Option<string?> Words = new("--words") { HelpName = "FILE", Description = "Words file for .npy vectors: one word per line, in row order." };
+        public readonly Option<string?> Counts = new("--counts") { HelpName = "FILE", Description = "Word counts: 'word<TAB>count' lines, or CSV with a 'word,count' header. Words without a count get 0." };
+        public readonly Option<int> Atoms = new("--atoms") { HelpName = "K", Description = "Number of atoms to learn.", DefaultValueFactory = _ => Defaults.Atoms };
+        public readonly Option<int> Sparsity = new("--sparsity") { HelpName = "S", Description = "Most atoms per word.", DefaultValueFactory = _ => Defaults.Sparsity };
+        public readonly Option<int> Rounds = new("--rounds") { HelpName = "R", Description = "Most learning rounds.", DefaultValueFactory = _ => Defaults.MaxRounds };
+        public readonly Option<double> Tolerance = new("--tolerance") { HelpName = "T", Description = "Stop when the relative error improves by less than this fraction between rounds.", DefaultValueFactory = _ => Defaults.Tolerance };
+        public readonly Option<int> Seed = new("--seed") { HelpName = "N", Description = "Random seed; the same seed and input give the same atoms.", DefaultValueFactory = _ => Defaults.Seed };
+        public readonly Option<int> Threads = new("--threads") { HelpName = "T", Description = "Worker threads; 0 uses every core. Results do not depend on it.", DefaultValueFactory = _ => Defaults.Threads };
+        public readonly Option<int> RemoveTop = new("--remove-top") { HelpName = "N", Description = "Subtract the mean vector and remove this many top principal components before learning; 0 does neither. Rows are always scaled to unit length.", DefaultValueFactory = _ => 0 };
+
+        public Option[] All => [Vectors, Out, Words, Counts, Atoms, Sparsity, Rounds, Tolerance, Seed, Threads, RemoveTop];
+
+        public AtomsSettings Bind(ParseResult parse) => new(
+            parse.GetValue(Vectors)!, parse.GetValue(Out)!, parse.GetValue(Words), parse.GetValue(Counts),
+            new DictionaryOptions
+            {
+                Atoms = parse.GetValue(Atoms),
+                Sparsity = parse.GetValue(Sparsity),
+                MaxRounds = parse.GetValue(Rounds),
+                Tolerance = parse.GetValue(Tolerance),
+                Seed = parse.GetValue(Seed),
+                Threads = parse.GetValue(Threads),
+            },
+            parse.GetValue(RemoveTop));
     }
 
     /// <summary>Runs the command. Throws <see cref="UserFacingException"/> for bad settings or input and

@@ -90,6 +90,8 @@ public static class ModelFolder
         PropertyNamingPolicy = JsonNamingPolicy.CamelCase,
         WriteIndented = true,
         NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals,
+        // Keep paths, versions ("1.0+abc") and non-ASCII file names readable; the manifest is never embedded in HTML.
+        Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping,
     };
 
     /// <summary>Throws (before any long computation) when <paramref name="directory"/> could not be replaced:
