@@ -58,11 +58,36 @@ public class Utf8NumberTests
         }
     }
 
+    [Fact]
+    public void TryParseFloat_NearFloatMidpoints_MatchFloatParse()
+    {
+        // Decimal strings at, just below and just above the exact midpoint between two adjacent floats: the cases
+        // where converting through double could round twice (the fast path must hand the exact ties on).
+        var rnd = new Random(99);
+        for (int n = 0; n < 50_000; n++)
+        {
+            float f = (float)((rnd.NextDouble() * 2 - 1) * Math.Pow(10, rnd.Next(-6, 9)));
+            double mid = ((double)f + MathF.BitIncrement(f)) / 2; // exact in double (25 significant bits)
+            string r = mid.ToString("R", CultureInfo.InvariantCulture);
+            AssertSameAsFloatParse(r);
+            AssertSameAsFloatParse(mid.ToString("E14", CultureInfo.InvariantCulture));
+            AssertSameAsFloatParse(Math.BitIncrement(mid).ToString("R", CultureInfo.InvariantCulture));
+            AssertSameAsFloatParse(Math.BitDecrement(mid).ToString("R", CultureInfo.InvariantCulture));
+        }
+    }
+
     [Theory]
-    // Edges of the exact fast path: 2^24 is the last significand it takes, 2^24+1 must go to the full parser.
+    // Edges of the exact fast path: limits of the significand (2^53) and exponent (22), and float ties.
     [InlineData("16777216")]
     [InlineData("16777217")]
     [InlineData("1.6777217")]
+    [InlineData("9007199254740992")]
+    [InlineData("9007199254740993")]
+    [InlineData("1e22")]
+    [InlineData("1e-22")]
+    [InlineData("1e23")]
+    [InlineData("16777217.000001")]
+    [InlineData("16777219")]
     [InlineData("1e10")]
     [InlineData("1e11")]
     [InlineData("1e-10")]
@@ -102,8 +127,11 @@ public class Utf8NumberTests
     [InlineData("0.418", true)]
     [InlineData("-0.41242", true)]
     [InlineData("2e-1", true)]
-    [InlineData("16777217", false)]
-    [InlineData("1e11", false)]
+    [InlineData("0.41242313", true)]
+    [InlineData("1e11", true)]
+    [InlineData("16777217", false)] // exactly halfway between the floats 2^24 and 2^24+2: full parser
+    [InlineData("1e23", false)]
+    [InlineData("12345678901234567", false)]
     [InlineData("NaN", false)]
     public void TryParseFast_CommonFormsTakeFastPath(string text, bool fast)
         => Assert.Equal(fast, Utf8Number.TryParseFast(Encoding.UTF8.GetBytes(text), out _));
