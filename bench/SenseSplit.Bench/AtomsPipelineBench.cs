@@ -44,9 +44,9 @@ public sealed class AtomsPipelineBench : IBenchSuite
             double vectorsMb = 4.0 * rows * dims / 1e6, gramMb = 4.0 * atoms * atoms / 1e6;
             double peakMb = Process.GetCurrentProcess().PeakWorkingSet64 / 1e6;
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"wall {wall:0.0} s (load {model.Manifest.LoadSeconds:0.0} s, learn {model.Manifest.LearnSeconds:0.0} s, rounds {model.Manifest.RoundsRun}, {model.Manifest.StopReason})"));
+                $"wall {wall:0.0} s (load {model.Manifest.Timings.ReadSeconds:0.0} s, learn {model.Manifest.Timings.LearnSeconds:0.0} s, rounds {model.Manifest.RoundsRun}, {model.Manifest.StopReason})"));
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"time per round {model.Manifest.LearnSeconds / Math.Max(1, model.Manifest.RoundsRun):0.00} s; final relative error {model.Manifest.ErrorPerRound[^1]:0.0000}"));
+                $"time per round {model.Manifest.Timings.LearnSeconds / Math.Max(1, model.Manifest.RoundsRun):0.00} s; final relative error {model.Manifest.ErrorPerRound[^1]:0.0000}"));
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"planted atoms recovered at |cos| > 0.99: {found} / {atoms} ({100.0 * found / atoms:0.0}%)"));
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,

@@ -44,9 +44,10 @@ public static class DemoCommand
             context.Err.WriteLine($"[1/{steps}] writing the {scenario.Name} corpus ({tokens.ToString("N0", CultureInfo.InvariantCulture)} tokens) to {corpus}");
             var settings = new DiscourseSettings { Tokens = tokens, Seed = seed };
             var generator = new DiscourseCorpusGenerator(scenario, settings);
-            var progress = new ProgressDisplay(context.Err, "corpus");
-            DemoFiles.WriteCorpus(corpus, generator, tokens, n => progress.Report(n, tokens, $"{n.ToString("N0", CultureInfo.InvariantCulture)} tokens"));
-            progress.Done("done");
+            var progress = ProgressDisplay.For(context);
+            progress.Stage("writing the corpus");
+            DemoFiles.WriteCorpus(corpus, generator, tokens, n => progress.Update("tokens", n, tokens));
+            progress.EndStage($"{tokens.ToString("N0", CultureInfo.InvariantCulture)} tokens");
             DemoFiles.WriteGlossary(glossary, scenario);
             DemoFiles.WriteTruth(Path.Combine(outDir, "truth.json"), scenario, generator, settings);
             cancel.ThrowIfCancellationRequested();
@@ -67,7 +68,7 @@ public static class DemoCommand
             WriteScorecard(Path.Combine(outDir, "scorecard.json"), score, clock.Elapsed.TotalSeconds, tokens, seed);
             PrintScorecard(context.Err, score);
             context.Err.WriteLine($"report: {Path.GetFullPath(Path.Combine(audit, "report.html"))}");
-            context.Err.WriteLine($"demo finished in {ProgressDisplay.Format(clock.Elapsed)}");
+            context.Err.WriteLine($"demo finished in {ProgressDisplay.FormatSeconds(clock.Elapsed)}");
             context.Out.WriteLine(Path.GetFullPath(Path.Combine(outDir, "scorecard.json")));
             return ExitCodes.Ok;
         }
