@@ -37,11 +37,11 @@ public sealed record RatioBins
         return bin;
     }
 
-    /// <summary>"[1, 2.37)"-style label with three significant digits.</summary>
+    /// <summary>"[1, 2.371)"-style label with four significant digits.</summary>
     public string Label(int bin)
     {
-        string lo = Lower(bin).ToString("G3", System.Globalization.CultureInfo.InvariantCulture);
-        string hi = Upper(bin).ToString("G3", System.Globalization.CultureInfo.InvariantCulture);
+        string lo = Lower(bin).ToString("G4", System.Globalization.CultureInfo.InvariantCulture);
+        string hi = Upper(bin).ToString("G4", System.Globalization.CultureInfo.InvariantCulture);
         return bin == Count - 1 ? $"[{lo}, {hi}+]" : $"[{lo}, {hi})";
     }
 }

@@ -26,8 +26,8 @@ public enum WeightLaw
 /// ordinary-least-squares (Student t) interval. NaN where too few pairs allow a fit.</summary>
 public sealed record LawParameter(double Estimate, double Lower, double Upper, double AnalyticLower, double AnalyticUpper, int ResamplesUsed);
 
-/// <summary>Root-mean-square error of β/α under each law (NaN where the law could not be fitted or no pair is present).</summary>
-public sealed record LawErrors(double Proportional, double Logarithmic, double Power)
+/// <summary>One number per law: an RMSE of β/α or a BIC (NaN where the law could not be fitted or no pair is present).</summary>
+public sealed record LawValues(double Proportional, double Logarithmic, double Power)
 {
     public double Of(WeightLaw law) => law switch
     {
@@ -38,7 +38,7 @@ public sealed record LawErrors(double Proportional, double Logarithmic, double P
 }
 
 /// <summary>One ratio bin: its edges, how many usable pairs fell in it, their medians, and each law's RMSE there.</summary>
-public sealed record BinSummary(int Bin, double LowerRatio, double UpperRatio, int Pairs, double MedianRatio, double MedianWeightRatio, LawErrors Rmse);
+public sealed record BinSummary(int Bin, double LowerRatio, double UpperRatio, int Pairs, double MedianRatio, double MedianWeightRatio, LawValues Rmse);
 
 /// <summary>Settings of <see cref="WeightLaws.Fit"/>.</summary>
 public sealed record WeightLawSettings
@@ -59,15 +59,16 @@ public sealed record WeightLawSettings
 /// <param name="PowerScale">A of β/α = A·r^(−γ).</param>
 /// <param name="Gamma">γ of β/α = A·r^(−γ).</param>
 /// <param name="PowerExcluded">Pairs left out of the power-law fit because β/α ≤ 0.</param>
-/// <param name="OverallRmse">Each law's error over all bins, every non-empty bin weighted equally.</param>
-/// <param name="BetterLaw">The law with the smallest <paramref name="OverallRmse"/>; null when none could be evaluated.</param>
+/// <param name="OverallRmse">Each law's RMSE of β/α over all usable pairs.</param>
+/// <param name="Bic">Each law's Bayesian information criterion n·ln(RSS/n) + k·ln n (k = 0, 1, 2 free parameters).</param>
+/// <param name="BetterLaw">The law with the smallest <paramref name="Bic"/>; null when none could be evaluated.</param>
 /// <param name="MedianCosineToSpan">Median over all pairs with a defined cosine to span(v1, v2).</param>
 /// <param name="MedianExcessFactor">Median of (β/α)/(1/r) = r·β/α.</param>
 /// <param name="ShareWellAbove">Share of usable pairs with β/α &gt; WellAboveFactor/r.</param>
 public sealed record WeightLawsResult(
     int PairsUsed, int PairsWithoutWeights,
     LawParameter C, double PowerScale, LawParameter Gamma, int PowerExcluded,
-    LawErrors OverallRmse, WeightLaw? BetterLaw, IReadOnlyList<BinSummary> Bins,
+    LawValues OverallRmse, LawValues Bic, WeightLaw? BetterLaw, IReadOnlyList<BinSummary> Bins,
     double MedianCosineToSpan, double MedianExcessFactor, double ShareWellAbove,
     WeightLawSettings Settings);
 
@@ -76,7 +77,9 @@ public sealed record WeightLawsResult(
 /// (a) proportional β/α = 1/r (no free parameter);
 /// (b) logarithmic β/α = 1 − c·x, x = log10 r, with c = Σ x(1 − q) / Σ x² minimising Σ (q − 1 + c x)² over pairs;
 /// (c) power β/α = A·r^(−γ), fitted by ordinary least squares of log10 q = log10 A − γ x over pairs with q &gt; 0.
-/// Errors are RMSE of β/α itself (not of its logarithm), per ratio bin and overall.
+/// Errors are RMSE of β/α itself (not of its logarithm), per ratio bin and overall; the better law is the one of
+/// smallest BIC on the same squared errors, so that the two-parameter power law (which contains the proportional law
+/// at A = 1, γ = 1) must earn its extra parameters.
 /// </summary>
 /// <remarks>
 /// The logarithmic form is the one an earlier preprint of Arora, Li, Liang, Ma &amp; Risteski, "Linear Algebraic
@@ -87,7 +90,8 @@ public sealed record WeightLawsResult(
 /// and measured β/α can be ≤ 0; a log-space error would have to drop exactly the pairs that separate the laws.
 /// Intervals are percentile intervals of the pairs bootstrap (Efron &amp; Tibshirani 1993, "An Introduction to the
 /// Bootstrap", ch. 9 and 13), which does not assume equal error variance across r; the analytic OLS t-interval is
-/// given beside it. Quantiles interpolate linearly (Hyndman &amp; Fan 1996, definition 7).
+/// given beside it. The BIC is that of Schwarz 1978, "Estimating the dimension of a model", Annals of Statistics 6(2),
+/// for Gaussian errors: n·ln(RSS/n) + k·ln n. Quantiles interpolate linearly (Hyndman &amp; Fan 1996, definition 7).
 /// </remarks>
 public static class WeightLaws
 {
@@ -135,32 +139,35 @@ public static class WeightLaws
         var (gAnLo, gAnHi) = AnalyticPower(x, q, logA, gamma, settings.Confidence);
 
         var binSummaries = new List<BinSummary>(bins.Count);
-        double[] sumBinMse = new double[3];
-        int[] binsWithError = new int[3];
         for (int b = 0; b < bins.Count; b++)
         {
             var members = Enumerable.Range(0, n).Where(i => bins.Of(used[i].Ratio) == b).ToArray();
             var errors = new double[3];
-            for (int law = 0; law < 3; law++)
-            {
-                double mse = Mse((WeightLaw)law, members, used, q, c, powerScale, gamma);
-                errors[law] = Math.Sqrt(mse);
-                if (double.IsFinite(mse)) { sumBinMse[law] += mse; binsWithError[law]++; }
-            }
+            for (int law = 0; law < 3; law++) errors[law] = Math.Sqrt(Mse((WeightLaw)law, members, used, q, c, powerScale, gamma));
             binSummaries.Add(new BinSummary(b, bins.Lower(b), bins.Upper(b), members.Length,
                 Median(members.Select(i => used[i].Ratio)), Median(members.Select(i => q[i])),
-                new LawErrors(errors[0], errors[1], errors[2])));
+                new LawValues(errors[0], errors[1], errors[2])));
         }
-        var overall = new double[3];
-        for (int law = 0; law < 3; law++) overall[law] = binsWithError[law] > 0 ? Math.Sqrt(sumBinMse[law] / binsWithError[law]) : double.NaN;
-        var overallErrors = new LawErrors(overall[0], overall[1], overall[2]);
+        var all = Enumerable.Range(0, n).ToArray();
+        var rmse = new double[3];
+        var bic = new double[3];
+        int[] freeParameters = [0, 1, 2];
+        for (int law = 0; law < 3; law++)
+        {
+            double mse = Mse((WeightLaw)law, all, used, q, c, powerScale, gamma);
+            rmse[law] = Math.Sqrt(mse);
+            // n·ln(RSS/n) = n·ln(MSE); an exact fit gives −∞, and equal −∞ keeps the simpler law below.
+            bic[law] = double.IsFinite(mse) ? n * Math.Log(mse) + freeParameters[law] * Math.Log(n) : double.NaN;
+        }
+        var overallErrors = new LawValues(rmse[0], rmse[1], rmse[2]);
+        var bicValues = new LawValues(bic[0], bic[1], bic[2]);
 
-        // Smallest error wins; on an exact tie the law with fewer free parameters (enum order) is kept.
+        // Smallest BIC wins; on a tie the law with fewer free parameters (enum order) is kept.
         WeightLaw? better = null;
         foreach (var law in new[] { WeightLaw.Proportional, WeightLaw.Logarithmic, WeightLaw.Power })
         {
-            double e = overallErrors.Of(law);
-            if (double.IsFinite(e) && (better is null || e < overallErrors.Of(better.Value))) better = law;
+            double e = bicValues.Of(law);
+            if (!double.IsNaN(e) && (better is null || e < bicValues.Of(better.Value))) better = law;
         }
 
         double medianCos = Median(pairs.Select(p => p.Fit.CosineToSpan).Where(double.IsFinite));
@@ -170,7 +177,7 @@ public static class WeightLaws
         return new WeightLawsResult(n, pairs.Count - n,
             new LawParameter(c, cLo, cHi, cAnLo, cAnHi, cUsed), powerScale,
             new LawParameter(gamma, gLo, gHi, gAnLo, gAnHi, gUsed), n - powerCount,
-            overallErrors, better, binSummaries, medianCos, medianExcess, shareAbove, settings);
+            overallErrors, bicValues, better, binSummaries, medianCos, medianExcess, shareAbove, settings);
     }
 
     /// <summary>Median of r·β/α over usable pairs with r ≥ <paramref name="minRatio"/> and how many there are.</summary>
