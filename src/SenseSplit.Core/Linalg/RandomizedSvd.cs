@@ -32,10 +32,10 @@ public sealed record TruncatedSvd(int Rows, int Columns, int K, float[] U, doubl
 /// Ω (n × l, l = k + p) Gaussian; Y₀ = AΩ, Q₀ = orth(Y₀); for j = 1..q: Q̂ = orth(AᵀQ_{j−1}), Q_j = orth(AQ̂).
 /// Stage B, Algorithm 5.1: B = QᵀA, computed as Bᵀ = AᵀQ (n × l); the small SVD of B comes from the eigen-decomposition
 /// of the l × l Gram matrix B Bᵀ = W Σ² Wᵀ (accumulated in double), so U = Q W, V = Bᵀ W Σ⁻¹.
-/// orth() is SVQB (Stathopoulos &amp; Wu 2002, "A block orthogonalization procedure with constant synchronization
-/// requirements", SIAM J. Sci. Comput. 23(6)) applied twice, like CholeskyQR2: G = YᵀY in double, G = W Λ Wᵀ,
-/// Y ← Y W Λ^{-1/2}; directions with λ ≤ 1e-10 λ_max are dropped (numerical rank deficiency), which the tall QR
-/// of CholeskyQR could not survive. Tall products go through <see cref="Gemm"/>; only l × l eigen-problems use
+/// orth() is CholeskyQR with the Gram matrix G = YᵀY accumulated in double (one pass inside the power iterations, two
+/// passes, i.e. CholeskyQR2, for the final basis); when G is numerically singular it falls back to SVQB (Stathopoulos
+/// &amp; Wu 2002, "A block orthogonalization procedure with constant synchronization requirements", SIAM J. Sci.
+/// Comput. 23(6)): G = W Λ Wᵀ, Y ← Y W Λ^{-1/2}, dropping directions with λ ≤ 1e-10 λ_max (numerical rank deficiency). Tall products go through <see cref="Gemm"/>; only l × l eigen-problems use
 /// MathNet.Numerics. Sparse products are parallel over fixed row blocks, Gram matrices over eight fixed row ranges
 /// summed in order, so the result depends on the seed only.
 /// </remarks>
@@ -103,37 +103,61 @@ public static class RandomizedSvd
     {
         int m = a.Rows, n = a.Columns;
         l = Math.Min(k + options.Oversample, Math.Min(m, n));
-        var omega = new float[(long)n * l];
-        new Gaussian((ulong)(uint)options.Seed).Fill(omega);
-        var y = new float[(long)m * l];
-        a.Multiply(omega, l, y, threads);
-        omega = [];
-        var q = Orthonormalize(y, m, ref l, threads);
-        var z = new float[(long)n * l];
+        // Scratch rented once: two tall buffers per side, reused by every iteration (l only shrinks).
+        var tallM = new float[(long)m * l];
+        var tallM2 = new float[(long)m * l];
+        var tallN = new float[(long)n * l];
+        var tallN2 = new float[(long)n * l];
+        new Gaussian((ulong)(uint)options.Seed).Fill(tallN);
+        a.Multiply(tallN, l, tallM, threads);
+        // Inside the power iterations one pass of CholeskyQR (orthonormal to ~ε·κ²) is enough to keep the basis from
+        // collapsing; the last basis gets a second pass (CholeskyQR2) so Q is orthonormal to working precision.
+        bool last = options.PowerIterations == 0;
+        var q = Orthonormalize(tallM, tallM2, m, ref l, last ? 2 : 1, threads);
         for (int it = 0; it < options.PowerIterations; it++)
         {
             progress?.Report($"power iteration {it + 1} of {options.PowerIterations}");
-            if (z.Length != (long)n * l) z = new float[(long)n * l];
-            at.Multiply(q, l, z, threads);
-            var zq = Orthonormalize(z, n, ref l, threads);
-            if (y.Length != (long)m * l) y = new float[(long)m * l];
+            at.Multiply(q, l, tallN, threads);
+            var zq = Orthonormalize(tallN, tallN2, n, ref l, 1, threads);
+            var y = q == tallM ? tallM2 : tallM;
             a.Multiply(zq, l, y, threads);
-            q = Orthonormalize(y, m, ref l, threads);
+            q = Orthonormalize(y, y == tallM ? tallM2 : tallM, m, ref l, it == options.PowerIterations - 1 ? 2 : 1, threads);
         }
         return q;
     }
 
-    /// <summary>Orthonormal basis of the columns of Y (rows × l): SVQB twice. Returns a new array; l may shrink.</summary>
-    internal static float[] Orthonormalize(float[] y, int rows, ref int l, int threads)
+    /// <summary>Orthonormal basis of the columns of Y (rows × l), by <paramref name="passes"/> passes of CholeskyQR
+    /// (SVQB where the Gram matrix is numerically singular). Works in place between <paramref name="y"/> and
+    /// <paramref name="scratch"/> and returns the one holding the result; l may shrink.</summary>
+    internal static float[] Orthonormalize(float[] y, float[] scratch, int rows, ref int l, int passes, int threads)
     {
-        var q1 = SvqbPass(y, rows, ref l, threads);
-        return SvqbPass(q1, rows, ref l, threads);
+        var from = y;
+        var to = scratch;
+        for (int p = 0; p < passes; p++)
+        {
+            bool dropped = OrthonormalizePass(from, to, rows, ref l, threads);
+            (from, to) = (to, from);
+            if (dropped && p == passes - 1) passes++; // a rank drop deserves one clean pass more
+            if (passes > 3) break;
+        }
+        return from;
     }
 
-    private static float[] SvqbPass(float[] y, int rows, ref int l, int threads)
+    /// <summary>One pass Q = Y·M with QᵀQ ≈ I. Gram G = YᵀY in double; Cholesky G = L Lᵀ gives M = L⁻ᵀ (CholeskyQR,
+    /// Fukaya et al. 2014, "CholeskyQR2: a simple and communication-avoiding algorithm for computing a tall-skinny QR
+    /// factorization", ScalA). When G is numerically singular (a pivot below 1e-10 of the largest diagonal entry), the
+    /// eigen-decomposition G = W Λ Wᵀ gives M = W Λ^{-1/2} over the eigenvalues above the tolerance (SVQB) and l shrinks.
+    /// Returns true when directions were dropped.</summary>
+    private static bool OrthonormalizePass(float[] y, float[] q, int rows, ref int l, int threads)
     {
         int cols = l;
         var g = Gram(y, rows, cols, threads);
+        var mt = CholeskyInverse(g, cols);
+        if (mt is not null)
+        {
+            Gemm.MultiplyTransposed(y.AsSpan(0, rows * cols), rows, mt, cols, cols, q.AsSpan(0, rows * cols), threads);
+            return false;
+        }
         var evd = Matrix<double>.Build.DenseOfArray(g).Evd(MathNet.Numerics.LinearAlgebra.Symmetricity.Symmetric);
         var order = Enumerable.Range(0, cols).OrderByDescending(i => evd.EigenValues[i].Real).ToArray();
         double lambdaMax = evd.EigenValues[order[0]].Real;
@@ -141,16 +165,53 @@ public static class RandomizedSvd
         while (kept < cols && lambdaMax > 0 && evd.EigenValues[order[kept]].Real > RankTolerance * lambdaMax) kept++;
         if (kept == 0) throw new ArgumentException("the matrix is zero (or numerically zero): no singular vectors to find");
         // Y ← Y M with M = W_kept Λ^{-1/2}; Gemm wants Mᵀ (kept × cols) row-major.
-        var mt = new float[(long)kept * cols];
+        var m = new float[(long)kept * cols];
         for (int j = 0; j < kept; j++)
         {
             double scale = 1.0 / Math.Sqrt(evd.EigenValues[order[j]].Real);
-            for (int i = 0; i < cols; i++) mt[(long)j * cols + i] = (float)(evd.EigenVectors[i, order[j]] * scale);
+            for (int i = 0; i < cols; i++) m[(long)j * cols + i] = (float)(evd.EigenVectors[i, order[j]] * scale);
         }
-        var q = new float[(long)rows * kept];
-        Gemm.MultiplyTransposed(y, rows, mt, kept, cols, q, threads);
+        Gemm.MultiplyTransposed(y.AsSpan(0, rows * cols), rows, m, kept, cols, q.AsSpan(0, rows * kept), threads);
         l = kept;
-        return q;
+        return kept < cols;
+    }
+
+    /// <summary>L⁻¹ (row-major, as float) of the Cholesky factor of G = L Lᵀ, or null when a pivot is not safely positive.</summary>
+    private static float[]? CholeskyInverse(double[,] g, int n)
+    {
+        var lower = new double[n, n];
+        double maxDiagonal = 0;
+        for (int i = 0; i < n; i++) maxDiagonal = Math.Max(maxDiagonal, g[i, i]);
+        if (!(maxDiagonal > 0)) return null;
+        for (int j = 0; j < n; j++)
+        {
+            double d = g[j, j];
+            for (int t = 0; t < j; t++) d -= lower[j, t] * lower[j, t];
+            if (!(d > RankTolerance * maxDiagonal)) return null;
+            double ljj = Math.Sqrt(d);
+            lower[j, j] = ljj;
+            for (int i = j + 1; i < n; i++)
+            {
+                double v = g[i, j];
+                for (int t = 0; t < j; t++) v -= lower[i, t] * lower[j, t];
+                lower[i, j] = v / ljj;
+            }
+        }
+        // Forward substitution for L X = I, column by column (X lower triangular).
+        var inv = new float[(long)n * n];
+        var x = new double[n];
+        for (int c = 0; c < n; c++)
+        {
+            for (int i = 0; i < c; i++) x[i] = 0;
+            for (int i = c; i < n; i++)
+            {
+                double v = i == c ? 1 : 0;
+                for (int t = c; t < i; t++) v -= lower[i, t] * x[t];
+                x[i] = v / lower[i, i];
+            }
+            for (int i = c; i < n; i++) inv[(long)i * n + c] = (float)x[i];
+        }
+        return inv;
     }
 
     /// <summary>G = YᵀY (l × l, double) of a row-major rows × l float matrix, over eight fixed row ranges summed in order.</summary>
@@ -178,48 +239,66 @@ public static class RandomizedSvd
         return g;
     }
 
-    /// <summary>Upper triangle of Σ_rows y yᵀ into acc (l × l), four rows at a time (rank-4 updates in double).</summary>
-    internal static void GramRange(float[] y, int start, int end, int l, double[] acc)
+    /// <summary>Upper triangle of Σ_rows y yᵀ into acc (l × l, row-major), eight rows at a time (rank-8 updates in double,
+    /// 256-bit FMA), then one row at a time. Scalar twin: <see cref="GramRangeScalar"/>.</summary>
+    internal static unsafe void GramRange(float[] y, int start, int end, int l, double[] acc)
     {
-        var d0 = new double[l]; var d1 = new double[l]; var d2 = new double[l]; var d3 = new double[l];
+        const int R = 8;
+        var d = new double[R * l];
         int row = start;
-        for (; row + 4 <= end; row += 4)
+        fixed (double* pd = d, pg = acc)
         {
-            Widen(y, row, l, d0); Widen(y, row + 1, l, d1); Widen(y, row + 2, l, d2); Widen(y, row + 3, l, d3);
-            for (int i = 0; i < l; i++)
+            for (; row + R <= end; row += R)
             {
-                double a0 = d0[i], a1 = d1[i], a2 = d2[i], a3 = d3[i];
-                var g = acc.AsSpan(i * l, l);
-                int j = i;
-                if (Vector256.IsHardwareAccelerated)
+                for (int r = 0; r < R; r++) Widen(y, row + r, l, d.AsSpan(r * l, l));
+                for (int i = 0; i < l; i++)
                 {
-                    var v0 = Vector256.Create(a0); var v1 = Vector256.Create(a1); var v2 = Vector256.Create(a2); var v3 = Vector256.Create(a3);
+                    double* g = pg + (long)i * l;
+                    var v0 = Vector256.Create(pd[i]); var v1 = Vector256.Create(pd[l + i]);
+                    var v2 = Vector256.Create(pd[2 * l + i]); var v3 = Vector256.Create(pd[3 * l + i]);
+                    var v4 = Vector256.Create(pd[4 * l + i]); var v5 = Vector256.Create(pd[5 * l + i]);
+                    var v6 = Vector256.Create(pd[6 * l + i]); var v7 = Vector256.Create(pd[7 * l + i]);
+                    int j = i;
                     for (; j + 4 <= l; j += 4)
                     {
-                        var s = Vector256.Create(g.Slice(j, 4));
-                        s = Vector256.FusedMultiplyAdd(v0, Vector256.Create(d0.AsSpan(j, 4)), s);
-                        s = Vector256.FusedMultiplyAdd(v1, Vector256.Create(d1.AsSpan(j, 4)), s);
-                        s = Vector256.FusedMultiplyAdd(v2, Vector256.Create(d2.AsSpan(j, 4)), s);
-                        s = Vector256.FusedMultiplyAdd(v3, Vector256.Create(d3.AsSpan(j, 4)), s);
-                        s.CopyTo(g.Slice(j, 4));
+                        var s = Vector256.Load(g + j);
+                        var s2 = Vector256.FusedMultiplyAdd(v1, Vector256.Load(pd + l + j), Vector256.Multiply(v0, Vector256.Load(pd + j)));
+                        var s3 = Vector256.FusedMultiplyAdd(v3, Vector256.Load(pd + 3 * l + j), Vector256.Multiply(v2, Vector256.Load(pd + 2 * l + j)));
+                        var s4 = Vector256.FusedMultiplyAdd(v5, Vector256.Load(pd + 5 * l + j), Vector256.Multiply(v4, Vector256.Load(pd + 4 * l + j)));
+                        var s5 = Vector256.FusedMultiplyAdd(v7, Vector256.Load(pd + 7 * l + j), Vector256.Multiply(v6, Vector256.Load(pd + 6 * l + j)));
+                        (s + ((s2 + s3) + (s4 + s5))).Store(g + j);
+                    }
+                    for (; j < l; j++)
+                    {
+                        double s2 = pd[i] * pd[j] + pd[l + i] * pd[l + j];
+                        double s3 = pd[2 * l + i] * pd[2 * l + j] + pd[3 * l + i] * pd[3 * l + j];
+                        double s4 = pd[4 * l + i] * pd[4 * l + j] + pd[5 * l + i] * pd[5 * l + j];
+                        double s5 = pd[6 * l + i] * pd[6 * l + j] + pd[7 * l + i] * pd[7 * l + j];
+                        g[j] += (s2 + s3) + (s4 + s5);
                     }
                 }
-                for (; j < l; j++)
-                    g[j] = Math.FusedMultiplyAdd(a3, d3[j], Math.FusedMultiplyAdd(a2, d2[j], Math.FusedMultiplyAdd(a1, d1[j], Math.FusedMultiplyAdd(a0, d0[j], g[j]))));
             }
         }
         for (; row < end; row++)
         {
-            Widen(y, row, l, d0);
+            Widen(y, row, l, d.AsSpan(0, l));
             for (int i = 0; i < l; i++)
             {
-                double a0 = d0[i];
-                for (int j = i; j < l; j++) acc[(long)i * l + j] = Math.FusedMultiplyAdd(a0, d0[j], acc[(long)i * l + j]);
+                double a0 = d[i];
+                for (int j = i; j < l; j++) acc[(long)i * l + j] += a0 * d[j];
             }
         }
     }
 
-    private static void Widen(float[] y, int row, int l, double[] d)
+    /// <summary>Scalar reference of <see cref="GramRange"/> (tests): plain double sums, row by row.</summary>
+    internal static void GramRangeScalar(float[] y, int start, int end, int l, double[] acc)
+    {
+        for (int row = start; row < end; row++)
+            for (int i = 0; i < l; i++)
+                for (int j = i; j < l; j++) acc[(long)i * l + j] += (double)y[(long)row * l + i] * y[(long)row * l + j];
+    }
+
+    private static void Widen(float[] y, int row, int l, Span<double> d)
     {
         var src = y.AsSpan((int)((long)row * l), l);
         for (int i = 0; i < l; i++) d[i] = src[i];
