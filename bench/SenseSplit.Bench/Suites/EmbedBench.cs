@@ -39,6 +39,7 @@ public sealed class EmbedBench : IBenchSuite
                 case "--corpus": corpusPath = args[++i]; break;
                 case "--threads": threads = int.Parse(args[++i], C); break;
                 case "--skip-svd": skipSvd = true; break;
+                case "--svd-parts": return SvdParts(threads <= 0 ? Environment.ProcessorCount : threads);
                 default: Console.Error.WriteLine($"unknown option {args[i]}"); return 2;
             }
         }
@@ -113,6 +114,44 @@ public sealed class EmbedBench : IBenchSuite
             }
             Console.WriteLine(string.Create(C, $"V={vocab.Count}: peak working set so far {Process.GetCurrentProcess().PeakWorkingSet64 / 1e6:F0} MB; load average {LoadAverage()}"));
         }
+        return 0;
+    }
+
+    /// <summary>CPU and wall time of the SVD's building blocks at m = 30,000, l = 310.</summary>
+    private static int SvdParts(int threads)
+    {
+        int m = 30_000, l = 310;
+        var rng = new Random(1);
+        var y = new float[m * l];
+        for (int i = 0; i < y.Length; i++) y[i] = (float)(rng.NextDouble() - 0.5);
+        var q = new float[m * l];
+        var b = new float[l * l];
+        for (int i = 0; i < b.Length; i++) b[i] = (float)(rng.NextDouble() - 0.5);
+        void Time(string what, Action action)
+        {
+            action();
+            var cpu = Process.GetCurrentProcess().TotalProcessorTime;
+            var sw = Stopwatch.StartNew();
+            action();
+            Console.WriteLine(string.Create(C, $"{what}: wall {sw.Elapsed.TotalSeconds:F3} s, CPU {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:F3} s"));
+        }
+        Time("Gram YᵀY double (30000 × 310)", () => RandomizedSvd.Gram(y, m, l, threads));
+        Time("Gemm Y·Mᵀ (30000 × 310 × 310)", () => Gemm.MultiplyTransposed(y, m, b, l, l, q, threads));
+        Time("Evd 310 × 310 (MathNet)", () => MathNet.Numerics.LinearAlgebra.Matrix<double>.Build.Random(l, l).Evd(MathNet.Numerics.LinearAlgebra.Symmetricity.Symmetric));
+        // Sparse product at PPMI-like density: 150 entries per row.
+        var ptr = new int[m + 1];
+        var cols = new int[m * 150];
+        var vals = new float[m * 150];
+        for (int i = 0; i < m; i++)
+        {
+            var set = new SortedSet<int>();
+            while (set.Count < 150) set.Add((int)(Math.Pow(rng.NextDouble(), 2) * m));
+            int at = i * 150;
+            foreach (int c in set) { cols[at] = c; vals[at] = 1; at++; }
+            ptr[i + 1] = at;
+        }
+        var a = new SparseMatrix(m, m, ptr, cols, vals);
+        Time("CSR × dense (30000², 4.5 M entries, width 310)", () => a.Multiply(y, l, q, threads));
         return 0;
     }
 

@@ -215,8 +215,13 @@ public static class RandomizedSvd
     }
 
     /// <summary>G = YᵀY (l × l, double) of a row-major rows × l float matrix, over eight fixed row ranges summed in order.</summary>
-    internal static double[,] Gram(float[] y, int rows, int l, int threads)
+    public static double[,] Gram(float[] y, int rows, int l, int threads)
     {
+        ArgumentNullException.ThrowIfNull(y);
+        Guard.Positive(l);
+        Guard.NonNegative(rows);
+        Guard.AtLeastLength(y.Length, (long)rows * l, "Y");
+        if (threads <= 0) threads = Environment.ProcessorCount;
         var partial = new double[GramRanges][];
         Parallel.For(0, GramRanges, new ParallelOptions { MaxDegreeOfParallelism = threads }, r =>
         {
