@@ -70,6 +70,13 @@ public sealed class GemmBench : IBenchSuite
                 Figure($"peak t{t}", FmaPeakFlops(t), t, () => FmaPeak(t));
                 Figure($"ours t{t}", flops, t, () => Gemm.MultiplyTransposed(a, m, b, n, k, c, t));
                 if (blas is not null) Figure($"openblas t{t}", flops, t, () => blas.MultiplyTransposed(a, m, b, n, k, c, t));
+                if (gram)
+                {
+                    // Symmetric products: ours computes the lower tiles and mirrors them; OpenBLAS ssyrk fills the
+                    // lower triangle only. GFLOP/s are counted as 2·m·n·k (the full product) for comparability.
+                    Figure($"ours-gram t{t}", flops, t, () => Gemm.Gram(a, m, k, c, t));
+                    if (blas is not null) Figure($"openblas-syrk t{t}", flops, t, () => blas.GramLower(a, m, k, c, t));
+                }
             }
             if (extraPaths)
             {
@@ -97,6 +104,8 @@ public sealed class GemmBench : IBenchSuite
             double ours = r[$"ours t{t}"];
             parts.Add(string.Create(Inv, $"t{t} ours/peak {ours / r[$"peak t{t}"]:F3}"));
             if (r.TryGetValue($"openblas t{t}", out double ob)) parts.Add(string.Create(Inv, $"t{t} ours/openblas {ours / ob:F3}"));
+            if (r.TryGetValue($"ours-gram t{t}", out double og) && r.TryGetValue($"openblas-syrk t{t}", out double os))
+                parts.Add(string.Create(Inv, $"t{t} ours-gram/openblas-syrk {og / os:F3}"));
         }
         return $"{label}: {string.Join("  ", parts)}";
     }
@@ -195,14 +204,16 @@ public sealed class GemmBench : IBenchSuite
     /// <summary>cblas_sgemm from a system OpenBLAS, bound at run time; null when the library is absent.</summary>
     private sealed unsafe class OpenBlas
     {
-        private const int RowMajor = 101, NoTrans = 111, Trans = 112;
+        private const int RowMajor = 101, NoTrans = 111, Trans = 112, Lower = 122;
         private readonly delegate* unmanaged<int, int, int, int, int, int, float, float*, int, float*, int, float, float*, int, void> _sgemm;
+        private readonly delegate* unmanaged<int, int, int, int, int, float, float*, int, float, float*, int, void> _ssyrk;
         private readonly delegate* unmanaged<int, void> _setThreads;
         public string Description { get; }
 
         private OpenBlas(nint handle, string description)
         {
             _sgemm = (delegate* unmanaged<int, int, int, int, int, int, float, float*, int, float*, int, float, float*, int, void>)NativeLibrary.GetExport(handle, "cblas_sgemm");
+            _ssyrk = (delegate* unmanaged<int, int, int, int, int, float, float*, int, float, float*, int, void>)NativeLibrary.GetExport(handle, "cblas_ssyrk");
             _setThreads = (delegate* unmanaged<int, void>)NativeLibrary.GetExport(handle, "openblas_set_num_threads");
             string config = "";
             if (NativeLibrary.TryGetExport(handle, "openblas_get_config", out nint getConfig))
@@ -221,6 +232,15 @@ public sealed class GemmBench : IBenchSuite
             fixed (float* pb = b)
             fixed (float* pc = c)
                 _sgemm(RowMajor, NoTrans, Trans, m, n, k, 1f, pa, k, pb, k, 0f, pc, n);
+        }
+
+        /// <summary>Lower triangle of C = A·Aᵀ: cblas_ssyrk(RowMajor, Lower, NoTrans, m, k, 1, A, k, 0, C, m).</summary>
+        public void GramLower(ReadOnlySpan<float> a, int m, int k, Span<float> c, int threads)
+        {
+            _setThreads(threads);
+            fixed (float* pa = a)
+            fixed (float* pc = c)
+                _ssyrk(RowMajor, Lower, NoTrans, m, k, 1f, pa, k, 0f, pc, m);
         }
     }
 }

@@ -22,6 +22,9 @@ public enum GemmKernel { Auto, Avx512, Avx2, Scalar }
 /// into KC-blocks that depend on k only, so results are bitwise identical for any thread count, any position of the
 /// element inside a tile, and C[i, j] and C[j, i] of a Gram product A·Aᵀ are bitwise equal. Different
 /// <see cref="GemmKernel"/> paths differ in rounding (the scalar path multiplies and adds separately).</para>
+/// <para>Inputs are checked for shape and length, not for finiteness: this is the innermost product, called on every
+/// batch, and IEEE arithmetic already carries a NaN or infinity of row i of A (or row j of B) into row i (column j)
+/// of C and nowhere else; finiteness is checked where matrices enter the pipeline.</para>
 /// </remarks>
 public static class Gemm
 {

@@ -4,8 +4,8 @@ namespace SenseSplit.Core.Linalg;
 
 /// <summary>
 /// A register-blocked micro-kernel: C[0..MR, 0..NR] (=|+=) Σ_{p&lt;kc} A[r, p]·Bp[p, 0..NR], where A's MR rows start
-/// lda floats apart and Bp is a packed panel stored [kc][NR]. Implementations are structs so that the generic
-/// driver is specialised (and the kernel inlined) per path.
+/// lda floats apart and Bp is a packed panel stored [kc][NR]. Implementations are structs, so the generic driver
+/// is compiled once per path with direct calls; kernels are not inlined, so their accumulators own the registers.
 /// </summary>
 internal unsafe interface IGemmMicroKernel
 {

@@ -178,6 +178,24 @@ public class GemmTests
         }
     }
 
+    [Theory]
+    [MemberData(nameof(Paths))]
+    public void MultiplyTransposed_NaNInOneRowOfA_PropagatesToThatRowOnly(GemmKernel path)
+    {
+        if (!SupportedOrThrows(path)) return;
+        // IEEE 754 arithmetic (common practice for BLAS-style kernels): no finiteness check in the hot product;
+        // a NaN in row 3 of A must reach every entry of row 3 of C and no other entry (padding must not leak it).
+        const int m = 13, n = 70, k = 9;
+        var a = RandomMatrix(m, k, seed: 50);
+        var b = RandomMatrix(n, k, seed: 51);
+        a[3 * k + 4] = float.NaN;
+        var c = new float[m * n];
+        Gemm.MultiplyTransposed(a, m, b, n, k, c, kernel: path);
+        for (int i = 0; i < m; i++)
+            for (int j = 0; j < n; j++)
+                Assert.Equal(i == 3, float.IsNaN(c[i * n + j]));
+    }
+
     [Fact]
     public void MultiplyTransposed_ShortBuffers_ThrowWithLengths()
     {
