@@ -234,7 +234,7 @@ public sealed class LearnSuite : IBenchSuite
         var observer = new Observer(problem.Atoms, p.Atoms, p.Dimensions, track);
         var reports = new List<RoundReport>();
         double t0 = observer.Now;
-        var result = DictionaryLearner.Learn(problem.Vectors, p.Rows, p.Dimensions, options, observer, new SyncProgress(reports));
+        var result = DictionaryLearner.Learn(problem.Vectors, p.Rows, p.Dimensions, options, observer, DictionaryLearner.DefaultKeptResiduals, new SyncProgress(reports));
         double total = observer.Now - t0;
         int found = PlantedDictionary.CountRecovered(problem.Atoms, p.Atoms, result.Atoms, result.AtomCount, p.Dimensions);
 

@@ -74,15 +74,16 @@ public static class DictionaryLearner
     /// <summary>Learns a dictionary for <paramref name="vectors"/> (rows×dims, row-major).</summary>
     public static DictionaryResult Learn(ReadOnlySpan<float> vectors, int rows, int dims, DictionaryOptions options,
         IProgress<RoundReport>? progress = null, CancellationToken cancellation = default)
-        => LearnCore(vectors, rows, dims, options, null, progress, cancellation);
+        => Learn(vectors, rows, dims, options, null, DefaultKeptResiduals, progress, cancellation);
 
-    /// <summary>Learn with an observer of the phases (used by the benchmark to time them; the core has no clock).</summary>
+    /// <summary>Residuals E_i of an atom's users are kept for the second update pass when it has at most this many users
+    /// (4096 × 300 floats = 4.9 MB); atoms with more users form them again.</summary>
+    internal const int DefaultKeptResiduals = 4096;
+
+    /// <summary>Learn with an observer of the phases (the benchmark times them; the core has no clock) and a chosen
+    /// limit for kept residuals (tests run both update paths).</summary>
     internal static DictionaryResult Learn(ReadOnlySpan<float> vectors, int rows, int dims, DictionaryOptions options,
-        ILearningObserver observer, IProgress<RoundReport>? progress = null, CancellationToken cancellation = default)
-        => LearnCore(vectors, rows, dims, options, observer, progress, cancellation);
-
-    private static DictionaryResult LearnCore(ReadOnlySpan<float> vectors, int rows, int dims, DictionaryOptions options,
-        ILearningObserver? observer, IProgress<RoundReport>? progress, CancellationToken cancellation)
+        ILearningObserver? observer, int keptResiduals, IProgress<RoundReport>? progress = null, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(options);
         Guard.Positive(rows);
@@ -102,10 +103,10 @@ public static class DictionaryLearner
         int threads = options.Threads;
         Guard.NonNegative(threads);
         Guard.Finite(vectors, dims, "vectors");
-        return new Learner(rows, dims, options, observer).Run(vectors, progress, cancellation);
+        return new Learner(rows, dims, options, observer, keptResiduals).Run(vectors, progress, cancellation);
     }
 
-    private sealed class Learner(int rows, int dims, DictionaryOptions options, ILearningObserver? observer)
+    private sealed class Learner(int rows, int dims, DictionaryOptions options, ILearningObserver? observer, int keptResiduals)
     {
         private readonly int k = options.Atoms;
         private readonly int s = options.Sparsity;
@@ -135,7 +136,7 @@ public static class DictionaryLearner
             var residual = new float[rows];
             var errors = new List<double>();
             var replacedPerRound = new List<int>();
-            var scratch = new UpdateScratch(rows, k, s, dims);
+            var scratch = new UpdateScratch(rows, k, s, dims, keptResiduals);
             var coding = BatchOmp.CreateScratch(rows, dims, k, s, threads);
 
             int round = 0;
@@ -226,12 +227,15 @@ public static class DictionaryLearner
             return Math.Sqrt(sum) / normX;
         }
 
-        private sealed class UpdateScratch(int rows, int atoms, int sparsity, int dims)
+        private sealed class UpdateScratch(int rows, int atoms, int sparsity, int dims, int kept)
         {
             public readonly int[] Offsets = new int[atoms + 1];   // users of atom j: Entries[Offsets[j] .. Offsets[j+1])
             public readonly int[] Entries = new int[rows * sparsity]; // code slot index i·sparsity + t, rows ascending
             public readonly float[] Accumulator = new float[dims];
             public readonly float[] Partial = new float[dims];
+            /// <summary>E_i of the users of the current atom when there are at most <c>kept</c> of them, so the second
+            /// pass needs one dot product per user instead of s.</summary>
+            public readonly float[] Residuals = new float[Math.Min(kept, rows) * dims];
             public readonly int[] Order = new int[rows];
             public readonly float[] Keys = new float[rows];
         }
@@ -257,7 +261,8 @@ public static class DictionaryLearner
         /// E_i = x_i − Σ_{t≠j} a_{t,i} d_t the residual of user i without atom j:
         ///   d_j = Σ_i g_i E_i / ||Σ_i g_i E_i||,   then  g_i = E_iᵀ d_j.
         /// This is one power-iteration step for the top singular pair of E_I (Aharon et al. 2006, eq. 21, whose exact
-        /// K-SVD step takes the full SVD). E_i is recomputed from the codes in both passes, never stored.
+        /// K-SVD step takes the full SVD). E_i is formed from the codes; it is kept for the second pass only
+        /// for atoms with at most <c>keptResiduals</c> users (bounded buffer), otherwise formed again.
         /// </summary>
         private unsafe void UpdateAtoms(ReadOnlySpan<float> vectors, float[] atoms, int[] ids, float[] weights,
             UpdateScratch sc, CancellationToken cancellation)
@@ -271,12 +276,14 @@ public static class DictionaryLearner
                 int start = sc.Offsets[j], end = sc.Offsets[j + 1];
                 if (start == end) continue; // unused atom: left for replacement
                 acc.Clear();
+                bool keep = end - start <= keptResiduals;
                 for (int p = start; p < end; p++)
                 {
                     int e = sc.Entries[p];
                     int i = e / s;
-                    ResidualWithout(vectors.Slice(i * dims, dims), atoms, ids, weights, i, e, part);
-                    TensorPrimitives.MultiplyAdd(part, weights[e], acc, acc);
+                    var ei = keep ? sc.Residuals.AsSpan((p - start) * dims, dims) : part;
+                    ResidualWithout(vectors.Slice(i * dims, dims), atoms, ids, weights, i, e, ei);
+                    TensorPrimitives.MultiplyAdd(ei, weights[e], acc, acc);
                 }
                 double norm = Math.Sqrt(SquaredNorm(acc));
                 // E_I g = 0: the users' residuals without atom j are orthogonal to their weights (e.g. all exactly
@@ -287,8 +294,13 @@ public static class DictionaryLearner
                 for (int p = start; p < end; p++)
                 {
                     int e = sc.Entries[p];
+                    if (keep)
+                    {
+                        weights[e] = TensorPrimitives.Dot(sc.Residuals.AsSpan((p - start) * dims, dims), dj);
+                        continue;
+                    }
+                    // Too many users to keep their residuals: g_i = E_iᵀ d_j = x_iᵀ d_j − Σ_{t≠j} a_{t,i} d_tᵀ d_j.
                     int i = e / s;
-                    // g_i = E_iᵀ d_j = x_iᵀ d_j − Σ_{t≠j} a_{t,i} d_tᵀ d_j.
                     double g = TensorPrimitives.Dot(vectors.Slice(i * dims, dims), dj);
                     for (int t = i * s, tEnd = t + s; t < tEnd; t++)
                     {
