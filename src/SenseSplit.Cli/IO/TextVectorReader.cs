@@ -137,9 +137,17 @@ internal sealed class TextVectorReader
             p = SkipBlanks(line, p);
             if (p == line.Length)
                 throw Error(_line, $"has {j.ToString(CultureInfo.InvariantCulture)} numbers, expected {dims.ToString(CultureInfo.InvariantCulture)} ({DimensionSource()})");
+            // One pass for the common case: parse the number-shaped prefix and accept it if a blank or the end follows.
+            var rest = line[p..];
+            if (Utf8Number.TryParseFastPrefix(rest, out float v, out int used) && (used == rest.Length || rest[used] == (byte)' ' || rest[used] == (byte)'\t'))
+            {
+                row[j] = v;
+                p += used;
+                continue;
+            }
             int e = TokenEnd(line, p);
             var token = line[p..e];
-            if (!Utf8Number.TryParseFloat(token, out float v))
+            if (!Utf8Number.TryParseFloat(token, out v))
                 throw Error(_line, Column(line, p), $"'{Printable.Token(token)}' (number {(j + 1).ToString(CultureInfo.InvariantCulture)}) is not a number");
             if (!float.IsFinite(v))
                 throw Error(_line, Column(line, p), $"'{Printable.Token(token)}' (number {(j + 1).ToString(CultureInfo.InvariantCulture)}) is not a finite float");
