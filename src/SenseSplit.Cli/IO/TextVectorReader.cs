@@ -17,22 +17,26 @@ internal sealed class TextVectorReader
 
     private readonly string _path;
     private readonly long _sizeHint;
+    private readonly long _lineCount;
     private long _line;
     private long _headerCount = -1;
     private int _dimensions = -1;
     private RowCollector? _rows;
 
-    private TextVectorReader(string path, long sizeHint)
+    private TextVectorReader(string path, long sizeHint, long lineCount)
     {
         _path = path;
         _sizeHint = sizeHint;
+        _lineCount = lineCount;
     }
 
-    /// <summary>Parses a whole text vector stream. <paramref name="sizeHint"/> is the byte length of the (uncompressed)
-    /// text when known (used to size the array up front), or a guess.</summary>
-    public static (RowCollector Rows, bool HadHeader) Read(Stream stream, string path, long sizeHint, CancellationToken cancellation)
+    /// <summary>Parses a whole text vector stream. Without a header the value array is sized from
+    /// <paramref name="lineCount"/> (lines in the text, when a pre-pass counted them: then no growth and, unless rows
+    /// are skipped, no final trim) or else from <paramref name="sizeHint"/> (byte length, or a guess of it) and grown
+    /// by half when full.</summary>
+    public static (RowCollector Rows, bool HadHeader) Read(Stream stream, string path, long sizeHint, long lineCount, CancellationToken cancellation)
     {
-        var reader = new TextVectorReader(path, sizeHint);
+        var reader = new TextVectorReader(path, sizeHint, lineCount);
         reader.Run(stream, cancellation);
         return (reader._rows!, reader._headerCount >= 0);
     }
@@ -106,7 +110,7 @@ internal sealed class TextVectorReader
         return true;
     }
 
-    /// <summary>Without a header the first row sets the dimension; the file size gives a first guess of the row count.</summary>
+    /// <summary>Without a header the first row sets the dimension; the line count (or the file size) sizes the array.</summary>
     private void StartBody(ReadOnlySpan<byte> line)
     {
         int tokens = 0;
@@ -114,7 +118,8 @@ internal sealed class TextVectorReader
         if (tokens < 2)
             throw Error(_line, $"the word '{Printable.Token(line)}' has no numbers after it");
         _dimensions = tokens - 1;
-        long guess = _sizeHint > 0 ? (long)(_sizeHint / (double)(line.Length + 1) * 1.05) + 16 : 1024;
+        long guess = _lineCount > 0 ? Math.Max(1, _lineCount - _line + 1)
+            : _sizeHint > 0 ? (long)(_sizeHint / (double)(line.Length + 1) * 1.05) + 16 : 1024;
         _rows = new RowCollector(_path, "line", _dimensions, guess);
     }
 
@@ -137,9 +142,17 @@ internal sealed class TextVectorReader
             p = SkipBlanks(line, p);
             if (p == line.Length)
                 throw Error(_line, $"has {j.ToString(CultureInfo.InvariantCulture)} numbers, expected {dims.ToString(CultureInfo.InvariantCulture)} ({DimensionSource()})");
+            // One pass for the common case: parse the number-shaped prefix and accept it if a blank or the end follows.
+            var rest = line[p..];
+            if (Utf8Number.TryParseFastPrefix(rest, out float v, out int used) && (used == rest.Length || rest[used] == (byte)' ' || rest[used] == (byte)'\t'))
+            {
+                row[j] = v;
+                p += used;
+                continue;
+            }
             int e = TokenEnd(line, p);
             var token = line[p..e];
-            if (!Utf8Number.TryParseFloat(token, out float v))
+            if (!Utf8Number.TryParseFloat(token, out v))
                 throw Error(_line, Column(line, p), $"'{Printable.Token(token)}' (number {(j + 1).ToString(CultureInfo.InvariantCulture)}) is not a number");
             if (!float.IsFinite(v))
                 throw Error(_line, Column(line, p), $"'{Printable.Token(token)}' (number {(j + 1).ToString(CultureInfo.InvariantCulture)}) is not a finite float");

@@ -33,8 +33,15 @@ internal static class Utf8Number
     /// Returns false (no value) for any other form, which the caller hands to the full parser.
     /// </summary>
     internal static bool TryParseFast(ReadOnlySpan<byte> s, out float value)
+        => TryParseFastPrefix(s, out value, out int used) && used == s.Length;
+
+    /// <summary>The fast path over the longest number-shaped prefix of <paramref name="s"/> (one pass over the bytes:
+    /// the text reader calls it at a token start and checks that a blank or the line end follows).
+    /// <paramref name="used"/> is the prefix length.</summary>
+    internal static bool TryParseFastPrefix(ReadOnlySpan<byte> s, out float value, out int used)
     {
         value = 0;
+        used = 0;
         int i = 0, n = s.Length;
         if (n == 0) return false;
         bool negative = false;
@@ -74,7 +81,7 @@ internal static class Utf8Number
             if (i == expStart) return false;
             exponent += expNegative ? -explicitExp : explicitExp;
         }
-        if (i != n) return false; // trailing characters: let the full parser decide (it rejects them)
+        used = i;
 
         if (mantissa == 0) { value = negative ? -0f : 0f; return true; }
         if (mantissa > (1UL << 53) || exponent < -22 || exponent > 22) return false;

@@ -170,6 +170,17 @@ public class VectorFileTests
         Assert.Equal(1f, load.Vectors.Row(1)[Dims - 1]);
     }
 
+    [Theory]
+    [InlineData("a 1\nb 2\n", 2)]
+    [InlineData("a 1\nb 2", 2)]
+    [InlineData("a 1\n\nb 2\n", 3)]
+    [InlineData("", 0)]
+    public void CountLines_TerminatedOrNot(string content, long expected)
+    {
+        using var t = new TempFolder();
+        Assert.Equal(expected, VectorFile.CountLines(t.Write("c.txt", content), CancellationToken.None));
+    }
+
     [Fact]
     public void Read_CrLfBomTabsAndBlankLines_Accepted()
     {
