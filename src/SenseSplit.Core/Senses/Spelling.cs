@@ -11,9 +11,10 @@ public static class Spelling
     public static int Distance(ReadOnlySpan<char> a, ReadOnlySpan<char> b, int limit = int.MaxValue)
     {
         Guard.NonNegative(limit);
-        if (Math.Abs(a.Length - b.Length) > limit) return limit + 1;
-        if (a.Length == 0) return b.Length;
-        if (b.Length == 0) return a.Length;
+        int over = limit == int.MaxValue ? int.MaxValue : limit + 1;
+        if (Math.Abs(a.Length - b.Length) > limit) return over;
+        if (a.Length == 0) return Math.Min(b.Length, over);
+        if (b.Length == 0) return Math.Min(a.Length, over);
         Span<int> prev = b.Length < 256 ? stackalloc int[b.Length + 1] : new int[b.Length + 1];
         Span<int> cur = b.Length < 256 ? stackalloc int[b.Length + 1] : new int[b.Length + 1];
         for (int j = 0; j <= b.Length; j++) prev[j] = j;
@@ -28,10 +29,10 @@ public static class Spelling
                 cur[j] = v;
                 if (v < rowMin) rowMin = v;
             }
-            if (rowMin > limit) return limit + 1;
+            if (rowMin > limit) return over;
             var t = prev; prev = cur; cur = t;
         }
-        return Math.Min(prev[b.Length], limit + 1);
+        return Math.Min(prev[b.Length], over);
     }
 
     /// <summary>Up to <paramref name="max"/> words of <paramref name="vocabulary"/> within <paramref name="maxDistance"/>
