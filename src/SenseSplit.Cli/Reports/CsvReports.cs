@@ -67,9 +67,10 @@ public static class CsvReports
             if (r.Senses.Count == 0)
             {
                 Common();
-                for (int i = 0; i < 7; i++) csv.WriteField("");
+                for (int i = 0; i < 7; i++) csv.WriteField(""); // sense, atoms, weight, share, label, neighbours, cues
+                csv.WriteField(r.Verdict == Verdict.Unknown ? "" : "true"); // doubtful: no usable atom
                 csv.WriteField(r.Composed ? "true" : "false");
-                csv.WriteField(hasCorpus ? Fmt.I(r.Occurrences) : "");
+                csv.WriteField(hasCorpus && r.Verdict != Verdict.Unknown ? Fmt.I(r.Occurrences) : "");
                 csv.WriteField("");
                 csv.WriteField(notes);
                 csv.NextRecord();
