@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # System packages used by the test suite (open datasets, a headless browser). Safe to run twice.
 set -euo pipefail
-pkgs=()
+pkgs=(chromium)
 [ ${#pkgs[@]} -eq 0 ] && exit 0
 if [ "$(id -u)" -ne 0 ]; then sudo=sudo; else sudo=; fi
 $sudo apt-get update -qq

@@ -103,13 +103,17 @@ public sealed class SenseTagger
     }
 
     /// <summary>Cuts a readable context around characters [charIndex, charIndex + length): up to
-    /// <paramref name="radius"/> characters each side, whitespace runs folded to one space, ellipses where cut.</summary>
+    /// <paramref name="radius"/> characters each side within the occurrence's line, whitespace runs folded to one
+    /// space, ellipses where cut.</summary>
     public static string Snippet(string text, int charIndex, int length, int radius = 80)
     {
-        int lo = Math.Max(0, charIndex - radius), hi = Math.Min(text.Length, charIndex + length + radius);
+        int lineStart = charIndex > 0 ? text.LastIndexOf('\n', charIndex - 1) + 1 : 0;
+        int lineEnd = text.IndexOf('\n', charIndex + length);
+        if (lineEnd < 0) lineEnd = text.Length;
+        int lo = Math.Max(lineStart, charIndex - radius), hi = Math.Min(lineEnd, charIndex + length + radius);
         if (lo > 0 && char.IsLowSurrogate(text[lo])) lo++;
         if (hi < text.Length && char.IsLowSurrogate(text[hi])) hi++;
         var s = System.Text.RegularExpressions.Regex.Replace(text[lo..hi], @"\s+", " ").Trim();
-        return (lo > 0 ? "…" : "") + s + (hi < text.Length ? "…" : "");
+        return (lo > lineStart ? "…" : "") + s + (hi < lineEnd ? "…" : "");
     }
 }

@@ -104,11 +104,13 @@ public class SenseTaggerTests
     [Fact]
     public void Snippet_CutsAndFoldsWhitespace()
     {
-        string text = new string('a', 100) + " the\n\n bank  here " + new string('b', 100);
+        string text = new string('a', 100) + " the\t\t bank  here " + new string('b', 100);
         int at = text.IndexOf("bank", StringComparison.Ordinal);
         var s = SenseTagger.Snippet(text, at, 4, 10);
         Assert.StartsWith("…", s);
         Assert.EndsWith("…", s);
         Assert.Contains("the bank here", s);
+        // Stays within the occurrence's line.
+        Assert.Equal("the river bank here", SenseTagger.Snippet("loan credit\nthe river bank here\nnext line", 22, 4));
     }
 }
