@@ -1,0 +1,112 @@
+using System.Security.Cryptography;
+using SenseSplit.Cli.IO;
+using SenseSplit.Core.Senses;
+
+namespace SenseSplit.Cli.Reports;
+
+/// <summary>A corpus document: where it came from, its text and where its lines start (for line numbers).</summary>
+public sealed record CorpusDocument(string Source, string Text)
+{
+    private int[]? _lineStarts;
+
+    /// <summary>1-based line of UTF-16 index <paramref name="charIndex"/>.</summary>
+    public int LineOf(int charIndex)
+    {
+        _lineStarts ??= LineStarts(Text);
+        int i = Array.BinarySearch(_lineStarts, charIndex);
+        return (i >= 0 ? i : ~i - 1) + 1;
+    }
+
+    private static int[] LineStarts(string text)
+    {
+        var starts = new List<int> { 0 };
+        for (int i = 0; i < text.Length; i++) if (text[i] == '\n') starts.Add(i + 1);
+        return starts.ToArray();
+    }
+}
+
+/// <summary>Loading and checking what the audit, senses and tag commands read.</summary>
+public static class AuditInputs
+{
+    /// <summary>Loads a model folder and, when <paramref name="vectorsFile"/> is given, checks that the model was learned
+    /// from that file (SHA-256 against the manifest).</summary>
+    public static ModelContent LoadModel(string directory, string? vectorsFile)
+    {
+        if (!Directory.Exists(directory)) throw new UserFacingException($"{directory}: model folder not found");
+        var model = ModelFolder.Load(directory);
+        if (vectorsFile is not null) CheckVectors(model.Manifest, directory, vectorsFile);
+        return model;
+    }
+
+    /// <summary>Throws when the SHA-256 of <paramref name="vectorsFile"/> differs from <see cref="ModelManifest.VectorsSha256"/>.</summary>
+    public static void CheckVectors(ModelManifest manifest, string modelDirectory, string vectorsFile)
+    {
+        if (!File.Exists(vectorsFile)) throw new UserFacingException($"{vectorsFile}: vectors file not found");
+        string actual;
+        using (var stream = File.OpenRead(vectorsFile)) actual = Convert.ToHexString(SHA256.HashData(stream));
+        if (string.IsNullOrEmpty(manifest.VectorsSha256))
+            throw new UserFacingException($"{modelDirectory}: the manifest records no SHA-256 of its vectors file, so it cannot be checked against {vectorsFile}");
+        if (!string.Equals(actual, manifest.VectorsSha256, StringComparison.OrdinalIgnoreCase))
+            throw new UserFacingException($"{vectorsFile}: this vectors file (SHA-256 {actual[..12].ToLowerInvariant()}…) is not the one the model in {modelDirectory} was learned from " +
+                $"({(manifest.VectorsFile.Length > 0 ? manifest.VectorsFile + ", " : "")}SHA-256 {manifest.VectorsSha256[..Math.Min(12, manifest.VectorsSha256.Length)].ToLowerInvariant()}…); " +
+                "learn atoms from this file first, or pass the model learned from it");
+    }
+
+    public static IReadOnlyList<CorpusDocument> ReadCorpus(IReadOnlyList<string> files, CliContext context)
+    {
+        var docs = new List<CorpusDocument>();
+        foreach (var f in files)
+        {
+            if (!File.Exists(f)) throw new UserFacingException($"{f}: corpus file not found");
+            string text;
+            try { text = File.ReadAllText(f); }
+            catch (IOException ex) { throw new UserFacingException($"{f}: cannot read the corpus file ({ex.Message})"); }
+            if (text.Length > 0 && text[0] == '\uFEFF') text = text[1..];
+            if (string.IsNullOrWhiteSpace(text)) context.Warn($"{f}: the corpus file is empty");
+            docs.Add(new CorpusDocument(f, text));
+        }
+        return docs;
+    }
+
+    public static SenseModel BuildSenseModel(ModelContent model, SenseOptions options)
+        => SenseModel.Build(model.Vectors, model.Atoms, model.AtomCount, model.Codes, model.Counts, options);
+
+    /// <summary>Writes a folder atomically: <paramref name="write"/> fills a temporary folder beside
+    /// <paramref name="directory"/>, which then replaces it.</summary>
+    public static void WriteFolderAtomically(string directory, Action<string> write)
+    {
+        var full = Path.GetFullPath(directory).TrimEnd(Path.DirectorySeparatorChar);
+        var parent = Path.GetDirectoryName(full) ?? ".";
+        var name = Path.GetFileName(full);
+        string tmp = Path.Combine(parent, $".{name}.tmp-{Environment.ProcessId}-{Guid.NewGuid():N}");
+        try
+        {
+            Directory.CreateDirectory(parent);
+            Directory.CreateDirectory(tmp);
+            write(tmp);
+            if (Directory.Exists(full))
+            {
+                string old = Path.Combine(parent, $".{name}.old-{Guid.NewGuid():N}");
+                Directory.Move(full, old);
+                Directory.Move(tmp, full);
+                Directory.Delete(old, true);
+            }
+            else Directory.Move(tmp, full);
+        }
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+        {
+            TryDelete(tmp);
+            throw new UserFacingException($"{directory}: cannot write the output folder ({ex.Message})", ExitCodes.WriteFailed);
+        }
+        catch
+        {
+            TryDelete(tmp);
+            throw;
+        }
+    }
+
+    private static void TryDelete(string dir)
+    {
+        try { if (Directory.Exists(dir)) Directory.Delete(dir, true); } catch (IOException) { } catch (UnauthorizedAccessException) { }
+    }
+}

@@ -1,0 +1,41 @@
+namespace SenseSplit.Core.Senses;
+
+/// <summary>Settings of sense splitting and occurrence assignment. Defaults are the CLI defaults; where each comes
+/// from is written beside it and in docs/methods-senses.md.</summary>
+public sealed record SenseOptions
+{
+    public AtomNamingOptions Naming { get; init; } = new();
+    /// <summary>An atom takes part in a sense only with a positive weight of at least this fraction of the term's
+    /// largest positive weight. Arora et al. (2018, TACL 6, §5) find the last one or two of five atoms often noise.</summary>
+    public double MinRelativeWeight { get; init; } = 0.3;
+    /// <summary>Atoms closer than this cosine read as one discourse to people (Arora et al. 2018, §5): merged outright.</summary>
+    public double SameCosine { get; init; } = 0.85;
+    /// <summary>Below this cosine, people read two atoms as clearly different (Arora et al. 2018, §5); at or above it the
+    /// cosine votes "same".</summary>
+    public double DifferentCosine { get; init; } = 0.5;
+    /// <summary>NPMI of co-usage by the other words at or above which co-usage votes "same" (our choice: with 2,000 atoms
+    /// and 100,000 words, about five other words sharing the pair).</summary>
+    public double NpmiVote { get; init; } = 0.2;
+    /// <summary>Label-closeness ratio at or above which the label words vote "same" (our choice: the cross-cosine of the
+    /// two label sets is at least half their own coherence).</summary>
+    public double LabelVote { get; init; } = 0.5;
+    /// <summary>Cosine of the centred context means at or above which the corpus votes "same" (our choice).</summary>
+    public double CorpusVote { get; init; } = 0.5;
+    /// <summary>Occurrences assigned to each of two atoms before the corpus may vote on them.</summary>
+    public int MinOccurrencesForVote { get; init; } = 5;
+    /// <summary>"Same" votes needed to merge two atoms (below <see cref="SameCosine"/>).</summary>
+    public int VotesToMerge { get; init; } = 2;
+    public int Neighbours { get; init; } = 10;
+    public int Cues { get; init; } = 8;
+    /// <summary>Context words taken on each side of an occurrence (our choice; Arora et al. 2018 use a comparable window).</summary>
+    public int Window { get; init; } = 5;
+    /// <summary>Smooth inverse frequency a in a/(a + p(w)): Arora, Liang &amp; Ma (2017), ICLR, "A simple but
+    /// tough-to-beat baseline for sentence embeddings"; 1e-3 is common practice.</summary>
+    public double SifA { get; init; } = 1e-3;
+    /// <summary>Temperature of the softmax over sense cosines that gives an occurrence's confidence (our choice:
+    /// a cosine lead of 0.1 over one rival gives 0.88).</summary>
+    public double Temperature { get; init; } = 0.05;
+    /// <summary>Close spellings offered for an unknown term, at most this edit distance away.</summary>
+    public int MaxEditDistance { get; init; } = 2;
+    public int MaxSpellings { get; init; } = 5;
+}
