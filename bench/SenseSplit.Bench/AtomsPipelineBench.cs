@@ -16,7 +16,7 @@ namespace SenseSplit.Bench;
 public sealed class AtomsPipelineBench : IBenchSuite
 {
     public string Name => "atoms";
-    public string Description => "atoms command end to end on a planted matrix (--rows N, --dims d, --atoms K, --noise x, --rounds R)";
+    public string Description => "atoms command end to end on a planted matrix (--rows N, --dims d, --atoms K, --noise x, --rounds R; --write-only FILE writes the matrix and stops, so the command can be timed as its own process)";
 
     public int Run(string[] args)
     {
@@ -24,6 +24,12 @@ public sealed class AtomsPipelineBench : IBenchSuite
         double noise = double.Parse(ArgS(args, "--noise", "0.05"), CultureInfo.InvariantCulture);
         string? rounds = args.Contains("--rounds") ? ArgS(args, "--rounds", "") : null;
         var problem = PlantedDictionary.Generate(new PlantedOptions { Rows = rows, Dimensions = dims, Atoms = atoms, Noise = noise, Seed = 11 });
+        if (args.Contains("--write-only"))
+        {
+            WriteText(ArgS(args, "--write-only", "planted.txt"), problem);
+            NpyFileWriter(ArgS(args, "--write-only", "planted.txt") + ".atoms.npy", problem);
+            return 0;
+        }
         string dir = Path.Combine(Path.GetTempPath(), "sensesplit-bench-atoms-" + Environment.ProcessId);
         Directory.CreateDirectory(dir);
         try
@@ -74,6 +80,12 @@ public sealed class AtomsPipelineBench : IBenchSuite
             }
             w.Write('\n');
         }
+    }
+
+    private static void NpyFileWriter(string path, PlantedProblem p)
+    {
+        using var stream = File.Create(path);
+        NpyFile.WriteMatrix<float>(stream, p.Atoms, p.AtomCount, p.Dimensions);
     }
 
     internal static int Arg(string[] args, string name, int fallback)

@@ -53,7 +53,7 @@ public static class DemoCommand
             cancel.ThrowIfCancellationRequested();
 
             context.Err.WriteLine($"[2/{steps}] embed: counts, PPMI, randomized SVD");
-            Step(context, "embed", [corpus, "--out", embedding, "--dim", S(dim), "--seed", S(seed)]);
+            Step(context, "embed", [corpus, "--out", embedding, "--overwrite", "--dim", S(dim), "--seed", S(seed)]);
             cancel.ThrowIfCancellationRequested();
 
             context.Err.WriteLine($"[3/{steps}] atoms: dictionary learning");
