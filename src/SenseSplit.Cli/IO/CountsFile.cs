@@ -87,6 +87,9 @@ public static class CountsFile
                 throw new UserFacingException($"{path}: line {line.ToString(CultureInfo.InvariantCulture)}: expected 'word<TAB>count', found '{Printable.Word(row.ToString())}'");
             var word = row[..split].TrimEnd(" \t");
             var count = row[(split + 1)..];
+            // A header line "word<TAB>count" (as 'sensesplit embed' writes) is skipped.
+            if (line == 1 && word.Equals("word", StringComparison.OrdinalIgnoreCase) && count.Equals("count", StringComparison.OrdinalIgnoreCase))
+                continue;
             if (word.Length == 0)
                 throw new UserFacingException($"{path}: line {line.ToString(CultureInfo.InvariantCulture)}: the word is missing before the count");
             long value = ParseCount(count, path, $"line {line.ToString(CultureInfo.InvariantCulture)}, column {(split + 2).ToString(CultureInfo.InvariantCulture)}");

@@ -19,6 +19,17 @@ public class CountsFileTests
     }
 
     [Fact]
+    public void Read_TabHeaderLine_SkippedAsEmbedWritesIt()
+    {
+        using var t = new TempFolder();
+        var path = t.Write("c.tsv", "word\tcount\nthe\t12\nword\t3\n");
+        var c = CountsFile.Read(path);
+        Assert.Equal(12, c["the"]);
+        Assert.Equal(3, c["word"]);
+        Assert.Equal(2, c.Count);
+    }
+
+    [Fact]
     public void Read_CsvWithHeader_QuotedFieldsViaCsvHelper()
     {
         using var t = new TempFolder();
