@@ -177,10 +177,8 @@ public class AtomsCommandTests
         Assert.Equal("", output);
     }
 
-    /// <summary>End to end on a small random matrix. Needs DictionaryLearner.Learn and BatchOmp.Encode, which another
-    /// branch is writing; until they land it fails with the numerics' NotImplementedException (exit 70).</summary>
+    /// <summary>End to end on a small random matrix: options, learning, model folder written and loaded back.</summary>
     [Fact]
-    [Trait("Waits", "Numerics")]
     public void Run_SmallRandomMatrix_WritesConsistentModel()
     {
         using var t = new TempFolder();
