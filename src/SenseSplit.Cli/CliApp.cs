@@ -29,7 +29,9 @@ public static class CliApp
         context.Verbose = parse.GetValue(VerboseOption);
         try
         {
-            return parse.Invoke(new InvocationConfiguration { Output = stdout, Error = stderr, EnableDefaultExceptionHandler = false });
+            int code = parse.Invoke(new InvocationConfiguration { Output = stdout, Error = stderr, EnableDefaultExceptionHandler = false });
+            // The parser reports its own errors (unknown option, missing value) with exit code 1; ours is Usage.
+            return parse.Errors.Count > 0 && code != ExitCodes.Ok ? ExitCodes.Usage : code;
         }
         catch (Exception ex)
         {

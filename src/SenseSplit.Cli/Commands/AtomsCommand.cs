@@ -109,8 +109,8 @@ public static class AtomsCommand
         progress.Stage("preparing vectors");
         var values = input.Values; // the reader's array is ours: prepare in place
         if (s.RemoveTop > 0)
-            Preparation.RemoveMeanAndTopComponents(values, input.Count, input.Dimensions, s.RemoveTop, o.Threads);
-        int zero = Preparation.NormalizeRows(values, input.Count, input.Dimensions);
+            VectorPreprocessing.RemoveTopComponents(values, input.Count, input.Dimensions, s.RemoveTop, o.Threads);
+        int zero = VectorPreprocessing.NormalizeRows(values, input.Count, input.Dimensions).Length;
         if (zero > 0)
             progress.Warn($"{I(zero)} vectors became zero after removing the top components; they stay zero and get empty codes");
         progress.EndStage(s.RemoveTop > 0 ? $"mean and {I(s.RemoveTop)} top components removed, rows scaled to unit length" : "rows scaled to unit length");
@@ -210,85 +210,5 @@ public static class AtomsCommand
         public void Report(RoundReport r)
             => display.Update("round", r.Round, r.MaxRounds,
                 $"error {r.RelativeError.ToString("0.00000", CultureInfo.InvariantCulture)}  replaced {r.AtomsReplaced.ToString(CultureInfo.InvariantCulture)}");
-    }
-
-    /// <summary>
-    /// Row preparation before learning. A stand-in for SenseSplit.Core.Vectors.VectorPreprocessing, which is not on
-    /// this branch yet; the lead replaces these calls when it lands.
-    /// </summary>
-    internal static class Preparation
-    {
-        /// <summary>Scales each row of <paramref name="values"/> (rows×dims) to unit Euclidean length; the norm is
-        /// accumulated in double. Zero rows stay zero; returns how many there were.</summary>
-        public static int NormalizeRows(float[] values, int rows, int dims)
-        {
-            int zero = 0;
-            for (int i = 0; i < rows; i++)
-            {
-                var row = values.AsSpan(i * dims, dims);
-                double sum = 0;
-                foreach (float v in row) sum += (double)v * v;
-                if (sum == 0) { zero++; continue; }
-                System.Numerics.Tensors.TensorPrimitives.Multiply(row, (float)(1.0 / Math.Sqrt(sum)), row);
-            }
-            return zero;
-        }
-
-        /// <summary>
-        /// x_i ← (x_i − μ) − Σ_{k&lt;c} (u_kᵀ(x_i − μ)) u_k for every row x_i of the rows×dims matrix, where μ is the
-        /// mean row and u_1..u_c the leading eigenvectors of the dims×dims covariance (1/rows) Σ (x_i − μ)(x_i − μ)ᵀ.
-        /// </summary>
-        /// <remarks>Mu and Viswanath (2018), "All-but-the-Top: Simple and Effective Postprocessing for Word
-        /// Representations", ICLR, Algorithm 1. The covariance is built from row blocks transposed into dims×block
-        /// panels (C += P·Pᵀ with <see cref="Gemm"/>) and summed in double; its eigenvectors come from MathNet's
-        /// symmetric eigendecomposition (a small dims×dims problem).</remarks>
-        public static void RemoveMeanAndTopComponents(float[] values, int rows, int dims, int components, int threads)
-        {
-            var mean = new double[dims];
-            for (int i = 0; i < rows; i++)
-            {
-                var row = values.AsSpan(i * dims, dims);
-                for (int j = 0; j < dims; j++) mean[j] += row[j];
-            }
-            var meanF = new float[dims];
-            for (int j = 0; j < dims; j++) meanF[j] = (float)(mean[j] / rows);
-            for (int i = 0; i < rows; i++)
-            {
-                var row = values.AsSpan(i * dims, dims);
-                System.Numerics.Tensors.TensorPrimitives.Subtract(row, meanF, row);
-            }
-
-            const int Block = 1024;
-            var panel = new float[dims * Block];
-            var partial = new float[dims * dims];
-            var covariance = new double[dims * dims];
-            for (int start = 0; start < rows; start += Block)
-            {
-                int b = Math.Min(Block, rows - start);
-                for (int i = 0; i < b; i++)
-                    for (int j = 0; j < dims; j++)
-                        panel[j * b + i] = values[(start + i) * dims + j];
-                Gemm.MultiplyTransposed(panel, dims, panel, dims, b, partial, threads);
-                for (int k = 0; k < covariance.Length; k++) covariance[k] += partial[k];
-            }
-            var matrix = Matrix<double>.Build.Dense(dims, dims, (r, c) => covariance[r * dims + c] / rows);
-            var evd = matrix.Evd(MathNet.Numerics.LinearAlgebra.Symmetricity.Symmetric);
-            var order = Enumerable.Range(0, dims).OrderByDescending(k => evd.EigenValues[k].Real).Take(components).ToArray();
-            var top = new float[components * dims];
-            for (int c = 0; c < components; c++)
-                for (int j = 0; j < dims; j++)
-                    top[c * dims + j] = (float)evd.EigenVectors[j, order[c]];
-
-            for (int i = 0; i < rows; i++)
-            {
-                var row = values.AsSpan(i * dims, dims);
-                for (int c = 0; c < components; c++)
-                {
-                    var u = top.AsSpan(c * dims, dims);
-                    float dot = System.Numerics.Tensors.TensorPrimitives.Dot(row, u);
-                    System.Numerics.Tensors.TensorPrimitives.MultiplyAdd(u, -dot, row, row);
-                }
-            }
-        }
     }
 }
