@@ -9,9 +9,13 @@ public sealed record DictionaryOptions
 {
     public int Atoms { get; init; } = 2000;
     public int Sparsity { get; init; } = 5;
-    /// <summary>Most learning rounds (coding + atom update each); the returned codes come from one more coding pass.</summary>
-    public int MaxRounds { get; init; } = 30;
-    /// <summary>Stop when the relative error improves by less than this (relative) between rounds. 0 runs all rounds.</summary>
+    /// <summary>Most learning rounds (coding + atom update each); the returned codes come from one more coding pass.
+    /// Default 15: on the planted benchmark (100,000 × 300, 2000 atoms, 5 per vector, 5% noise) 15 rounds recover
+    /// 99.7% of the planted atoms (90% after 8), within the 60 s budget once the GEMM is fast (docs/performance.md).</summary>
+    public int MaxRounds { get; init; } = 15;
+    /// <summary>Stop when the relative error improves by less than this (relative) between rounds. 0 runs all rounds.
+    /// Default 1e-3: on the planted benchmark no round before the noise floor improves by less than 1.8%, so the
+    /// tolerance only ends runs that have stopped learning.</summary>
     public double Tolerance { get; init; } = 1e-3;
     public int Seed { get; init; } = 1;
     /// <summary>0 means Environment.ProcessorCount.</summary>

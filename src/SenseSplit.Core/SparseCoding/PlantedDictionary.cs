@@ -37,16 +37,20 @@ public static class PlantedDictionary
     public static PlantedProblem Generate(PlantedOptions options)
     {
         ArgumentNullException.ThrowIfNull(options);
-        int rows = options.Rows, dims = options.Dimensions, k = options.Atoms, s = options.Sparsity;
+        int rows = options.Rows, dims = options.Dimensions, atomCount = options.Atoms, sparsity = options.Sparsity;
         Guard.Positive(rows);
         Guard.Positive(dims);
-        Guard.Positive(k);
-        Guard.Positive(s);
-        Guard.AtMost(s, k, "atoms");
+        Guard.Positive(atomCount);
+        Guard.Positive(sparsity);
+        Guard.AtMost(sparsity, atomCount, "atoms");
+        Guard.AtMost(sparsity, dims, "dimensions");
+        int k = atomCount, s = sparsity;
         if (!(options.Noise >= 0) || double.IsInfinity(options.Noise))
-            throw new ArgumentOutOfRangeException(nameof(options), $"noise ({options.Noise}) must be finite and not negative");
+            throw new ArgumentOutOfRangeException(nameof(options),
+                $"noise ({options.Noise.ToString(System.Globalization.CultureInfo.InvariantCulture)}) must be finite and not negative");
         if (!(options.MinWeight >= 0 && options.MinWeight <= 1))
-            throw new ArgumentOutOfRangeException(nameof(options), $"minimum weight ({options.MinWeight}) must be in [0, 1]");
+            throw new ArgumentOutOfRangeException(nameof(options),
+                $"minimum weight ({options.MinWeight.ToString(System.Globalization.CultureInfo.InvariantCulture)}) must be in [0, 1]");
 
         var rng = new Random(options.Seed);
         var atoms = new float[k * dims];
