@@ -314,22 +314,28 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
             int words = _owner._words;
             int localRows = (words - _index + threads - 1) / threads;
             var rowStart = new int[localRows + 1];
-            int count = 0;
-            var readers = new List<IPairReader>();
             for (int b = 0; b < Buckets; b++)
             {
                 if (_bucketFill[b] > 0) ApplyBucket(b, _bucketFill[b]);
                 _bucketFill[b] = 0;
             }
-            readers.AddRange(_owner._store.Open(_index));
+            // The bucket maps hold disjoint keys: concatenate them and sort once.
+            int count = 0;
+            foreach (var map in _maps) count += map.Count;
+            var allKeys = new ulong[count];
+            var allValues = new long[count];
+            int filled = 0;
             for (int b = 0; b < Buckets; b++)
             {
                 var (keys, vals, entries) = _maps[b].TakeSorted();
                 _maps[b] = null!;
-                count += entries;
-                readers.Add(new ArrayPairReader(keys, vals, entries));
+                Array.Copy(keys, 0, allKeys, filled, entries);
+                Array.Copy(vals, 0, allValues, filled, entries);
+                filled += entries;
             }
-            using var merged = new PairMerger(readers);
+            Array.Sort(allKeys, allValues);
+            var readers = new List<IPairReader>(_owner._store.Open(_index)) { new ArrayPairReader(allKeys, allValues, count) };
+            using var merged = readers.Count == 1 ? readers[0] : new PairMerger(readers);
             var cols = new int[Math.Max(16, count + DenseNonZeros())];
             var values = new float[cols.Length];
             int n = 0;
