@@ -29,7 +29,7 @@ public sealed class EmbedBench : IBenchSuite
         int[] vocabSizes = [30_000, 100_000];
         string? corpusPath = null;
         int threads = 0;
-        bool skipSvd = false;
+        bool skipSvd = false, countOnly = false;
         for (int i = 0; i < args.Length; i++)
         {
             switch (args[i])
@@ -39,6 +39,7 @@ public sealed class EmbedBench : IBenchSuite
                 case "--corpus": corpusPath = args[++i]; break;
                 case "--threads": threads = int.Parse(args[++i], C); break;
                 case "--skip-svd": skipSvd = true; break;
+                case "--count-only": countOnly = true; break;
                 case "--svd-parts": return SvdParts(threads <= 0 ? Environment.ProcessorCount : threads);
                 default: Console.Error.WriteLine($"unknown option {args[i]}"); return 2;
             }
@@ -65,20 +66,44 @@ public sealed class EmbedBench : IBenchSuite
         Report("baseline: Regex split + ToLower + Dictionary", naiveTokens, naiveSeconds);
 
         var reader = new CorpusReader();
+        var cpuScan = Process.GetCurrentProcess().TotalProcessorTime;
         sw.Restart();
         var nullSink = new CountingSink();
         reader.Read(input, new TokenScanner(new TokenizerOptions()), nullSink);
         double scanSeconds = sw.Elapsed.TotalSeconds;
         Report("decode + tokenize (no table)", nullSink.Tokens, scanSeconds);
+        Console.WriteLine(string.Create(C, $"  CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpuScan).TotalSeconds:F2} s"));
 
+        var cpuPass1 = Process.GetCurrentProcess().TotalProcessorTime;
         sw.Restart();
         var table = new WordTable();
         var vocabCounter = new VocabularyCounter(table);
         reader.Read(input, new TokenScanner(new TokenizerOptions()), vocabCounter);
         double pass1 = sw.Elapsed.TotalSeconds;
         Report("pass 1: decode + tokenize + word table", vocabCounter.Tokens, pass1);
+        double pass1Cpu = (Process.GetCurrentProcess().TotalProcessorTime - cpuPass1).TotalSeconds;
+        Console.WriteLine(string.Create(C, $"  CPU time {pass1Cpu:F2} s = {vocabCounter.Tokens / pass1Cpu / 1e6:F2} M tokens per CPU-second"));
         Console.WriteLine(string.Create(C, $"  ratio to baseline: {naiveSeconds / pass1:F1}x faster"));
 
+        if (countOnly)
+        {
+            var vocab = Vocabulary.Select(table, 5, vocabSizes[0]);
+            var ids = new IdRecorder();
+            reader.Read(input, new TokenScanner(new TokenizerOptions()), new TokenIdMapper(table, vocab.TableIdToWordId, null, ids));
+            foreach (int t in new[] { 1, threads })
+            {
+                var cpu = Process.GetCurrentProcess().TotalProcessorTime;
+                sw.Restart();
+                using var counter = new CooccurrenceCounter(vocab.Count, new CooccurrenceOptions { Threads = t });
+                foreach (int v in ids.Ids) { if (v == -2) counter.LineBreak(); else counter.Id(v); }
+                var cpuFeed = Process.GetCurrentProcess().TotalProcessorTime - cpu;
+                var wallFeed = sw.Elapsed.TotalSeconds;
+                var counts = counter.Complete();
+                Console.WriteLine(string.Create(C, $"  before Complete: wall {wallFeed:F2} s, CPU {cpuFeed.TotalSeconds:F2} s"));
+                Console.WriteLine(string.Create(C, $"count-only V={vocab.Count} threads {t}: wall {sw.Elapsed.TotalSeconds:F2} s, CPU {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:F2} s, {counts.UpperNonZeros} pairs"));
+            }
+            return 0;
+        }
         foreach (int words in vocabSizes)
         {
             GC.Collect();
@@ -162,6 +187,14 @@ public sealed class EmbedBench : IBenchSuite
     {
         try { return File.ReadAllText("/proc/loadavg").Split(' ').Take(3).Aggregate((a, b) => a + " " + b); }
         catch (IOException) { return "?"; }
+    }
+
+    private sealed class IdRecorder : IIdSink
+    {
+        public readonly List<int> Ids = new();
+        public void Id(int id) => Ids.Add(id);
+        public void LineBreak() => Ids.Add(-2);
+        public void ParagraphBreak() => Ids.Add(-2);
     }
 
     private sealed class CountingSink : ITokenSink

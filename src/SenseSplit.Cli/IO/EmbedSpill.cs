@@ -12,7 +12,7 @@ public sealed class DiskRunStore(string folder) : IRunStore, IDisposable
     public int RunCount { get { lock (_lock) return _runs.Count; } }
     public long BytesWritten { get; private set; }
 
-    public void Write(int partition, ReadOnlySpan<ulong> keys, ReadOnlySpan<long> values)
+    public void Write(int partition, IPairReader run)
     {
         Directory.CreateDirectory(folder);
         int n = Interlocked.Increment(ref _next);
@@ -21,13 +21,15 @@ public sealed class DiskRunStore(string folder) : IRunStore, IDisposable
         {
             using var f = new FileStream(path, FileMode.CreateNew, FileAccess.Write, FileShare.None, 1 << 20);
             using var w = new BinaryWriter(f);
-            for (int i = 0; i < keys.Length; i++) { w.Write(keys[i]); w.Write(values[i]); }
+            long written = 0;
+            while (run.Next(out ulong key, out long value)) { w.Write(key); w.Write(value); written++; }
+            lock (_lock) BytesWritten += written * 16;
         }
         catch (IOException ex)
         {
             throw new UserFacingException($"temporary run file {path}: write failed ({ex.Message}); free disk space or point --temp-dir elsewhere", ExitCodes.WriteFailed);
         }
-        lock (_lock) { _runs.Add((partition, path)); BytesWritten += (long)keys.Length * 16; }
+        lock (_lock) _runs.Add((partition, path));
     }
 
     public IReadOnlyList<IPairReader> Open(int partition)

@@ -38,6 +38,8 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
     private const int BreakMark = -2;
     private const int BlockSize = 1 << 18;
     private const int DenseCutoff = 2048;
+    /// <summary>Most words: ids are packed in 24 bits beside the distance.</summary>
+    public const int MaxWords = 1 << 24;
 
     private readonly int _words;
     private readonly int _window;
@@ -58,6 +60,7 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
     {
         ArgumentNullException.ThrowIfNull(options);
         Guard.Positive(words);
+        Guard.AtMost(words, MaxWords, "MaxWords");
         if (options.Window < 1 || options.Window > CooccurrenceOptions.MaxWindow)
             throw new ArgumentOutOfRangeException(nameof(options), options.Window, $"window ({options.Window}) must be between 1 and {CooccurrenceOptions.MaxWindow}");
         if (options.MemoryBytes < 1 << 20) throw new ArgumentOutOfRangeException(nameof(options), options.MemoryBytes, $"memory budget ({options.MemoryBytes} bytes) must be at least 1 MB");
@@ -74,8 +77,9 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
         _wordCounts = new long[words];
         int cutoff = Math.Min(words, DenseCutoff);
         long denseBytes = (long)cutoff * (cutoff + 1) / 2 * 8;
-        // Half of the budget goes to the pair maps; the rest is left for the dense tables, the merged counts and the caller.
-        _mapBytes = Math.Max(1 << 16, (options.MemoryBytes / 2 - denseBytes * _threads) / _threads);
+        // Half of the budget (at least a quarter) goes to the pair maps; the rest is left for the dense tables, the
+        // merged counts and the caller.
+        _mapBytes = Math.Max(options.MemoryBytes / 4, options.MemoryBytes / 2 - denseBytes * _threads) / _threads;
         _workers = new Worker[_threads];
         for (int t = 0; t < _threads; t++) _workers[t] = new Worker(this, t, cutoff);
         foreach (var w in _workers) w.Start();
@@ -194,7 +198,13 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
         private readonly Thread _thread;
         private long[] _dense;
         private readonly long[] _triangleBase;
-        private PairHashMap _map;
+        // Pairs for the hash maps are first appended to one of 64 buckets (by hash), then applied to that bucket's
+        // own small map in a burst: the random accesses stay inside a map of ~1/64 of the size, mostly in cache.
+        private const int Buckets = 64;
+        private const int BucketCapacity = 1024;
+        private readonly PairHashMap[] _maps;
+        private readonly ulong[] _bucketKeys = new ulong[Buckets * BucketCapacity];
+        private readonly int[] _bucketFill = new int[Buckets];
 
         public Worker(CooccurrenceCounter owner, int index, int cutoff)
         {
@@ -204,12 +214,13 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
             _dense = new long[(long)cutoff * (cutoff + 1) / 2];
             _triangleBase = new long[cutoff];
             for (int c = 0; c < cutoff; c++) _triangleBase[c] = (long)c * (c + 1) / 2;
-            _map = new PairHashMap(1 << 16, owner._mapBytes);
+            _maps = new PairHashMap[Buckets];
+            for (int b = 0; b < Buckets; b++) _maps[b] = new PairHashMap(1024, owner._mapBytes / Buckets);
             _thread = new Thread(Loop) { IsBackground = true, Name = $"cooccurrence-{index}" };
         }
 
         public Exception? Failure { get; private set; }
-        public long Bytes => _dense.LongLength * 8 + _map.Bytes;
+        public long Bytes => _dense.LongLength * 8 + _maps.Sum(m => m?.Bytes ?? 0);
 
         public void Start() => _thread.Start();
         public void Enqueue(Block b) => _queue.Add(b);
@@ -253,18 +264,48 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
                     if (c < cutoff) dense[triangleBase[c] + r] += w;
                     else
                     {
-                        ulong key = ((ulong)(uint)r << 32) | (uint)c;
-                        if (!_map.TryAdd(key, w))
-                        {
-                            Spill();
-                            _map.TryAdd(key, w);
-                        }
+                        // Distance in the top 5 bits (ids are below 2^24), row and column below.
+                        ulong key = ((ulong)(i - j) << 59) | ((ulong)(uint)r << 32) | (uint)c;
+                        int bucket = (int)(((((ulong)(uint)r << 32) | (uint)c) * 0x9E3779B97F4A7C15UL) >> 58);
+                        int fill = _bucketFill[bucket];
+                        _bucketKeys[bucket * BucketCapacity + fill] = key;
+                        if (++fill == BucketCapacity) { ApplyBucket(bucket, fill); fill = 0; }
+                        _bucketFill[bucket] = fill;
                     }
                 }
             }
         }
 
-        private void Spill() => _map.DrainSorted((keys, values) => _owner._store.Write(_index, keys.Span, values.Span));
+        private void ApplyBucket(int bucket, int fill)
+        {
+            var map = _maps[bucket];
+            var weights = _owner._weights;
+            var keys = _bucketKeys.AsSpan(bucket * BucketCapacity, fill);
+            foreach (ulong packed in keys)
+            {
+                ulong key = packed & ((1UL << 59) - 1);
+                long w = weights[(int)(packed >> 59)];
+                if (!map.TryAdd(key, w))
+                {
+                    SpillAll();
+                    map.TryAdd(key, w);
+                }
+            }
+        }
+
+        /// <summary>One bucket map is at its share of the budget: all maps go to the run store as one sorted run
+        /// (64-way merge of the individually sorted maps) and are emptied.</summary>
+        private void SpillAll()
+        {
+            var readers = new List<IPairReader>(Buckets);
+            foreach (var m in _maps)
+            {
+                var (k, v, n) = m.SortedView();
+                readers.Add(new ArrayPairReader(k, v, n));
+            }
+            using (var merged = new PairMerger(readers)) _owner._store.Write(_index, merged);
+            foreach (var m in _maps) m.Clear();
+        }
 
         /// <summary>Merges the dense table, the map and this worker's spilled runs into compact rows.</summary>
         public (int[] RowStart, int[] Columns, float[] Values) Merge()
@@ -273,11 +314,28 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
             int words = _owner._words;
             int localRows = (words - _index + threads - 1) / threads;
             var rowStart = new int[localRows + 1];
-            var (keys, vals, count) = _map.TakeSorted();
-            _map = null!;
-            var readers = new List<IPairReader>(_owner._store.Open(_index));
-            readers.Add(new ArrayPairReader(keys, vals, count));
-            using var merged = new PairMerger(readers);
+            for (int b = 0; b < Buckets; b++)
+            {
+                if (_bucketFill[b] > 0) ApplyBucket(b, _bucketFill[b]);
+                _bucketFill[b] = 0;
+            }
+            // The bucket maps hold disjoint keys: concatenate them and sort once.
+            int count = 0;
+            foreach (var map in _maps) count += map.Count;
+            var allKeys = new ulong[count];
+            var allValues = new long[count];
+            int filled = 0;
+            for (int b = 0; b < Buckets; b++)
+            {
+                var (keys, vals, entries) = _maps[b].TakeSorted();
+                _maps[b] = null!;
+                Array.Copy(keys, 0, allKeys, filled, entries);
+                Array.Copy(vals, 0, allValues, filled, entries);
+                filled += entries;
+            }
+            Array.Sort(allKeys, allValues);
+            var readers = new List<IPairReader>(_owner._store.Open(_index)) { new ArrayPairReader(allKeys, allValues, count) };
+            using var merged = readers.Count == 1 ? readers[0] : new PairMerger(readers);
             var cols = new int[Math.Max(16, count + DenseNonZeros())];
             var values = new float[cols.Length];
             int n = 0;

@@ -123,6 +123,17 @@ public sealed class PairHashMap
         _count = 0;
     }
 
+    /// <summary>Sorts the entries into the front of the slot arrays (destroying the hash layout) and returns them;
+    /// call <see cref="Clear"/> before using the map again.</summary>
+    internal (ulong[] Keys, long[] Values, int Count) SortedView() => (_keys, _values, CompactSorted());
+
+    /// <summary>Empties the map (same capacity).</summary>
+    public void Clear()
+    {
+        Array.Clear(_keys);
+        _count = 0;
+    }
+
     /// <summary>Sorts the entries into the front of the arrays (destroying the hash layout) and returns them; the map
     /// must not be used afterwards.</summary>
     internal (ulong[] Keys, long[] Values, int Count) TakeSorted()

@@ -12,9 +12,9 @@ public interface IPairReader : IDisposable
 /// </summary>
 public interface IRunStore
 {
-    /// <summary>Stores one run of partition <paramref name="partition"/> (keys strictly increasing). May be called from
-    /// several threads at once, for different partitions.</summary>
-    void Write(int partition, ReadOnlySpan<ulong> keys, ReadOnlySpan<long> values);
+    /// <summary>Stores one run of partition <paramref name="partition"/>, read to its end from <paramref name="run"/>
+    /// (keys strictly increasing). May be called from several threads at once, for different partitions.</summary>
+    void Write(int partition, IPairReader run);
 
     /// <summary>Readers over every run written for <paramref name="partition"/>.</summary>
     IReadOnlyList<IPairReader> Open(int partition);
@@ -31,10 +31,12 @@ public sealed class MemoryRunStore : IRunStore
 
     public int RunCount { get { lock (_lock) return _runs.Count; } }
 
-    public void Write(int partition, ReadOnlySpan<ulong> keys, ReadOnlySpan<long> values)
+    public void Write(int partition, IPairReader run)
     {
-        var run = (partition, keys.ToArray(), values.ToArray());
-        lock (_lock) _runs.Add(run);
+        var keys = new List<ulong>();
+        var values = new List<long>();
+        while (run.Next(out ulong k, out long v)) { keys.Add(k); values.Add(v); }
+        lock (_lock) _runs.Add((partition, keys.ToArray(), values.ToArray()));
     }
 
     public IReadOnlyList<IPairReader> Open(int partition)

@@ -16,14 +16,15 @@ public sealed class WordTable
     private int[] _length = new int[1024];
     private uint[] _hash = new uint[1024];
     private long[] _counts = new long[1024];
-    private int[] _slots = CreateSlots(2048);
+    // Slot = (hash << 32) | (id + 1); 0 = empty. The hash in the slot spares a visit to the entry on a mismatch.
+    private ulong[] _slots = new ulong[2048];
     private int _count;
 
     /// <summary>Number of distinct words.</summary>
     public int Count => _count;
 
     /// <summary>Bytes held by the table (for memory reports).</summary>
-    public long ApproximateBytes => (long)_chars.Length * 2 + (long)_offset.Length * 24 + (long)_slots.Length * 4;
+    public long ApproximateBytes => (long)_chars.Length * 2 + (long)_offset.Length * 24 + (long)_slots.Length * 8;
 
     public ReadOnlySpan<char> Word(int id) => _chars.AsSpan(_offset[id], _length[id]);
     public string WordString(int id) => new(Word(id));
@@ -34,13 +35,24 @@ public sealed class WordTable
     public int Find(ReadOnlySpan<char> word)
     {
         uint h = Hash(word);
-        int mask = _slots.Length - 1;
+        return Probe(word, h, out _);
+    }
+
+    /// <summary>Id of the word (or -1) and the slot where the probe ended.</summary>
+    private int Probe(ReadOnlySpan<char> word, uint h, out int slot)
+    {
+        var slots = _slots;
+        int mask = slots.Length - 1;
         int s = (int)(h & (uint)mask);
         while (true)
         {
-            int id = _slots[s];
-            if (id < 0) return -1;
-            if (_hash[id] == h && word.SequenceEqual(_chars.AsSpan(_offset[id], _length[id]))) return id;
+            ulong v = slots[s];
+            if (v == 0) { slot = s; return -1; }
+            if ((uint)(v >> 32) == h)
+            {
+                int id = (int)(uint)v - 1;
+                if (word.SequenceEqual(_chars.AsSpan(_offset[id], _length[id]))) { slot = s; return id; }
+            }
             s = (s + 1) & mask;
         }
     }
@@ -49,16 +61,8 @@ public sealed class WordTable
     public int GetOrAdd(ReadOnlySpan<char> word)
     {
         uint h = Hash(word);
-        int mask = _slots.Length - 1;
-        int s = (int)(h & (uint)mask);
-        while (true)
-        {
-            int id = _slots[s];
-            if (id < 0) break;
-            if (_hash[id] == h && word.SequenceEqual(_chars.AsSpan(_offset[id], _length[id]))) return id;
-            s = (s + 1) & mask;
-        }
-        return Insert(word, h, s);
+        int id = Probe(word, h, out int s);
+        return id >= 0 ? id : Insert(word, h, s);
     }
 
     /// <summary>Counts one occurrence of <paramref name="word"/> and returns its id.</summary>
@@ -91,29 +95,22 @@ public sealed class WordTable
         _length[id] = word.Length;
         _hash[id] = h;
         _charCount += word.Length;
-        _slots[slot] = id;
+        _slots[slot] = ((ulong)h << 32) | (uint)(id + 1);
         if (_count * 2 > _slots.Length) Rehash(_slots.Length * 2);
         return id;
     }
 
     private void Rehash(int size)
     {
-        var slots = CreateSlots(size);
+        var slots = new ulong[size];
         int mask = size - 1;
         for (int id = 0; id < _count; id++)
         {
             int s = (int)(_hash[id] & (uint)mask);
-            while (slots[s] >= 0) s = (s + 1) & mask;
-            slots[s] = id;
+            while (slots[s] != 0) s = (s + 1) & mask;
+            slots[s] = ((ulong)_hash[id] << 32) | (uint)(id + 1);
         }
         _slots = slots;
-    }
-
-    private static int[] CreateSlots(int size)
-    {
-        var slots = new int[size];
-        Array.Fill(slots, -1);
-        return slots;
     }
 
     /// <summary>Fast non-cryptographic hash of a char span (four chars per 64-bit step, multiply-rotate mixing).

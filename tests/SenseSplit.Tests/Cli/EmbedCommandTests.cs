@@ -279,3 +279,36 @@ public sealed class EmbedCommandTests : IDisposable
         Assert.Contains(option, err);
     }
 }
+
+public sealed class EmbedSpillTests : IDisposable
+{
+    private readonly string _dir = Directory.CreateTempSubdirectory("sensesplit-embed-spill-").FullName;
+
+    public void Dispose()
+    {
+        try { Directory.Delete(_dir, recursive: true); } catch (IOException) { }
+    }
+
+    [Fact]
+    public void Embed_MemoryBudgetForcingDiskRuns_GivesIdenticalOutput()
+    {
+        // Many distinct pairs (3000 random words) so a 16M budget must spill sorted runs to disk.
+        var rng = new Random(31);
+        var sb = new StringBuilder();
+        for (int line = 0; line < 40_000; line++)
+        {
+            for (int t = 0; t < 8; t++) sb.Append('w').Append(rng.Next(3000).ToString(System.Globalization.CultureInfo.InvariantCulture)).Append(' ');
+            sb.Append('\n');
+        }
+        string corpus = Path.Combine(_dir, "c.txt");
+        File.WriteAllText(corpus, sb.ToString());
+        var err1 = new StringWriter();
+        Assert.Equal(0, CliApp.Run(["embed", corpus, "--out", Path.Combine(_dir, "small"), "--dim", "6", "--memory", "16M", "--min-count", "1"], new StringWriter(), err1));
+        Assert.Equal(0, CliApp.Run(["embed", corpus, "--out", Path.Combine(_dir, "big"), "--dim", "6", "--min-count", "1"], new StringWriter(), new StringWriter()));
+        using var manifest = JsonDocument.Parse(File.ReadAllText(Path.Combine(_dir, "small", "manifest.json")));
+        Assert.True(manifest.RootElement.GetProperty("spilledRuns").GetInt32() > 0, err1.ToString());
+        Assert.Equal(File.ReadAllBytes(Path.Combine(_dir, "big", "vectors.txt")), File.ReadAllBytes(Path.Combine(_dir, "small", "vectors.txt")));
+        // The temporary run files are gone.
+        Assert.Empty(Directory.GetDirectories(Path.GetTempPath(), $"sensesplit-embed-{Environment.ProcessId}-*"));
+    }
+}
