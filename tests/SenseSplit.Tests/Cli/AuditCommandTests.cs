@@ -178,7 +178,7 @@ public class AuditCommandTests
         Assert.Contains("close spellings: guitar", output.ToString());
     }
 
-    [Fact(Skip = "waiting for ModelFolder.Write/Load (another helper) to land in this branch")]
+    [Fact]
     public void Run_ModelFolder_EndToEnd()
     {
         var dir = AuditFixtures.TempDir();

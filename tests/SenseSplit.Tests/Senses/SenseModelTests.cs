@@ -170,7 +170,7 @@ public class SenseModelBehaviourTests
         Assert.False(r.Composed);
     }
 
-    [Fact(Skip = "waiting for BatchOmp.Encode (another helper) to land in this branch")]
+    [Fact]
     public void Analyze_MultiwordTermWithoutJoinedEntry_ComposedAndCoded()
     {
         var (_, model) = Named.Value;

@@ -1,0 +1,223 @@
+using System.Diagnostics;
+using System.Globalization;
+using System.IO.Compression;
+using System.Text;
+using System.Text.RegularExpressions;
+using SenseSplit.Cli.IO;
+using SenseSplit.Core.Cooccurrence;
+using SenseSplit.Core.Linalg;
+using SenseSplit.Core.Text;
+
+namespace SenseSplit.Bench.Suites;
+
+/// <summary>
+/// The embed pipeline stage by stage on a corpus of at least 20 M tokens built from GCIDE (Debian dict-gcide: markup
+/// stripped, lines repeated in shuffled order until the target size): decode, tokenize, vocabulary pass, counting pass,
+/// merge, PPMI, SVD (d = 300) for each vocabulary size, peak memory. Baseline in the same run: a naive tokenizer
+/// (Regex split + ToLowerInvariant + Dictionary&lt;string,long&gt;).
+/// Usage: embed [--tokens 20000000] [--words 30000,100000] [--corpus FILE] [--threads 2] [--skip-svd]
+/// </summary>
+public sealed class EmbedBench : IBenchSuite
+{
+    public string Name => "embed";
+    public string Description => "embed pipeline stages on >= 20 M tokens of GCIDE text";
+    private static readonly CultureInfo C = CultureInfo.InvariantCulture;
+
+    public int Run(string[] args)
+    {
+        long targetTokens = 20_000_000;
+        int[] vocabSizes = [30_000, 100_000];
+        string? corpusPath = null;
+        int threads = 0;
+        bool skipSvd = false;
+        for (int i = 0; i < args.Length; i++)
+        {
+            switch (args[i])
+            {
+                case "--tokens": targetTokens = long.Parse(args[++i], C); break;
+                case "--words": vocabSizes = args[++i].Split(',').Select(s => int.Parse(s, C)).ToArray(); break;
+                case "--corpus": corpusPath = args[++i]; break;
+                case "--threads": threads = int.Parse(args[++i], C); break;
+                case "--skip-svd": skipSvd = true; break;
+                case "--svd-parts": return SvdParts(threads <= 0 ? Environment.ProcessorCount : threads);
+                default: Console.Error.WriteLine($"unknown option {args[i]}"); return 2;
+            }
+        }
+        if (threads <= 0) threads = Environment.ProcessorCount;
+        corpusPath ??= BuildGcideCorpus(targetTokens);
+        var input = new CorpusInput(corpusPath, corpusPath, new FileInfo(corpusPath).Length, false);
+        Console.WriteLine(string.Create(C, $"corpus {corpusPath}: {input.Bytes / 1e6:F1} MB; threads {threads}; load average {LoadAverage()}"));
+
+        // Reference in the same run: naive tokenizer + counter.
+        var sw = Stopwatch.StartNew();
+        var naive = new Dictionary<string, long>();
+        long naiveTokens = 0;
+        var split = new Regex(@"[^\p{L}\p{Nd}'-]+", RegexOptions.Compiled);
+        foreach (var line in File.ReadLines(corpusPath))
+            foreach (var t in split.Split(line))
+            {
+                if (t.Length == 0) continue;
+                var w = t.ToLowerInvariant();
+                naive[w] = naive.GetValueOrDefault(w) + 1;
+                naiveTokens++;
+            }
+        double naiveSeconds = sw.Elapsed.TotalSeconds;
+        Report("baseline: Regex split + ToLower + Dictionary", naiveTokens, naiveSeconds);
+
+        var reader = new CorpusReader();
+        sw.Restart();
+        var nullSink = new CountingSink();
+        reader.Read(input, new TokenScanner(new TokenizerOptions()), nullSink);
+        double scanSeconds = sw.Elapsed.TotalSeconds;
+        Report("decode + tokenize (no table)", nullSink.Tokens, scanSeconds);
+
+        sw.Restart();
+        var table = new WordTable();
+        var vocabCounter = new VocabularyCounter(table);
+        reader.Read(input, new TokenScanner(new TokenizerOptions()), vocabCounter);
+        double pass1 = sw.Elapsed.TotalSeconds;
+        Report("pass 1: decode + tokenize + word table", vocabCounter.Tokens, pass1);
+        Console.WriteLine(string.Create(C, $"  ratio to baseline: {naiveSeconds / pass1:F1}x faster"));
+
+        foreach (int words in vocabSizes)
+        {
+            GC.Collect();
+            var vocab = Vocabulary.Select(table, 5, words);
+            var proc = Process.GetCurrentProcess();
+            sw.Restart();
+            var cpu0 = Process.GetCurrentProcess().TotalProcessorTime;
+            CooccurrenceCounts counts;
+            int spilled;
+            using (var counter = new CooccurrenceCounter(vocab.Count, new CooccurrenceOptions { Threads = threads }))
+            {
+                var mapper = new TokenIdMapper(table, vocab.TableIdToWordId, null, counter);
+                reader.Read(input, new TokenScanner(new TokenizerOptions()), mapper);
+                double countSeconds = sw.Elapsed.TotalSeconds;
+                Report($"V={vocab.Count}: pass 2: counting (window 5, 1/d)", counter.Tokens, countSeconds);
+                Console.WriteLine(string.Create(C, $"  CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpu0).TotalSeconds:F2} s"));
+                sw.Restart();
+                counts = counter.Complete();
+                spilled = counter.SpilledRuns;
+            }
+            Console.WriteLine(string.Create(C, $"V={vocab.Count}: merge {sw.Elapsed.TotalSeconds:F2} s, {counts.UpperNonZeros} pairs, {spilled} runs"));
+            sw.Restart();
+            var ppmi = Ppmi.Compute(counts, new PpmiOptions());
+            counts = null!;
+            Console.WriteLine(string.Create(C, $"V={vocab.Count}: PPMI {sw.Elapsed.TotalSeconds:F2} s, {ppmi.Matrix.NonZeros} entries"));
+            GC.Collect();
+            if (!skipSvd)
+            {
+                sw.Restart();
+                var svd = RandomizedSvd.Compute(ppmi.Matrix, 300, new RandomizedSvdOptions { Threads = threads }, ppmi.Transposed,
+                    new Progress<string>(_ => { }));
+                Console.WriteLine(string.Create(C, $"V={vocab.Count}: SVD d=300 p=10 q=4: {sw.Elapsed.TotalSeconds:F2} s (σ1 {svd.SingularValues[0]:G5}, σ300 {svd.SingularValues[299]:G5})"));
+            }
+            Console.WriteLine(string.Create(C, $"V={vocab.Count}: peak working set so far {Process.GetCurrentProcess().PeakWorkingSet64 / 1e6:F0} MB; load average {LoadAverage()}"));
+        }
+        return 0;
+    }
+
+    /// <summary>CPU and wall time of the SVD's building blocks at m = 30,000, l = 310.</summary>
+    private static int SvdParts(int threads)
+    {
+        int m = 30_000, l = 310;
+        var rng = new Random(1);
+        var y = new float[m * l];
+        for (int i = 0; i < y.Length; i++) y[i] = (float)(rng.NextDouble() - 0.5);
+        var q = new float[m * l];
+        var b = new float[l * l];
+        for (int i = 0; i < b.Length; i++) b[i] = (float)(rng.NextDouble() - 0.5);
+        void Time(string what, Action action)
+        {
+            action();
+            var cpu = Process.GetCurrentProcess().TotalProcessorTime;
+            var sw = Stopwatch.StartNew();
+            action();
+            Console.WriteLine(string.Create(C, $"{what}: wall {sw.Elapsed.TotalSeconds:F3} s, CPU {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:F3} s"));
+        }
+        Time("Gram YᵀY double (30000 × 310)", () => RandomizedSvd.Gram(y, m, l, threads));
+        Time("Gemm Y·Mᵀ (30000 × 310 × 310)", () => Gemm.MultiplyTransposed(y, m, b, l, l, q, threads));
+        Time("Evd 310 × 310 (MathNet)", () => MathNet.Numerics.LinearAlgebra.Matrix<double>.Build.Random(l, l).Evd(MathNet.Numerics.LinearAlgebra.Symmetricity.Symmetric));
+        // Sparse product at PPMI-like density: 150 entries per row.
+        var ptr = new int[m + 1];
+        var cols = new int[m * 150];
+        var vals = new float[m * 150];
+        for (int i = 0; i < m; i++)
+        {
+            var set = new SortedSet<int>();
+            while (set.Count < 150) set.Add((int)(Math.Pow(rng.NextDouble(), 2) * m));
+            int at = i * 150;
+            foreach (int c in set) { cols[at] = c; vals[at] = 1; at++; }
+            ptr[i + 1] = at;
+        }
+        var a = new SparseMatrix(m, m, ptr, cols, vals);
+        Time("CSR × dense (30000², 4.5 M entries, width 310)", () => a.Multiply(y, l, q, threads));
+        return 0;
+    }
+
+    private static void Report(string what, long tokens, double seconds) =>
+        Console.WriteLine(string.Create(C, $"{what}: {tokens / 1e6:F2} M tokens in {seconds:F2} s = {tokens / seconds / 1e6:F2} M tokens/s"));
+
+    private static string LoadAverage()
+    {
+        try { return File.ReadAllText("/proc/loadavg").Split(' ').Take(3).Aggregate((a, b) => a + " " + b); }
+        catch (IOException) { return "?"; }
+    }
+
+    private sealed class CountingSink : ITokenSink
+    {
+        public long Tokens;
+        public void Token(ReadOnlySpan<char> token) => Tokens++;
+        public void LineBreak() { }
+        public void ParagraphBreak() { }
+    }
+
+    /// <summary>GCIDE text (markup stripped), repeated with shuffled line order until ~target tokens; cached in /tmp.</summary>
+    internal static string BuildGcideCorpus(long targetTokens)
+    {
+        string path = Path.Combine(Path.GetTempPath(), string.Create(C, $"sensesplit-bench-gcide-{targetTokens}.txt"));
+        if (File.Exists(path)) return path;
+        const string source = "/usr/share/dictd/gcide.dict.dz";
+        if (!File.Exists(source)) throw new InvalidOperationException($"{source} is missing: apt-get install dict-gcide");
+        var lines = GcideText.Lines(source).ToList();
+        long perCopy = lines.Sum(l => (long)l.Split(' ', StringSplitOptions.RemoveEmptyEntries).Length);
+        var rng = new Random(1);
+        using var w = new StreamWriter(path + ".tmp", false, new UTF8Encoding(false));
+        long written = 0;
+        for (int copy = 0; written < targetTokens; copy++)
+        {
+            var order = lines.ToArray();
+            if (copy > 0) rng.Shuffle(order);
+            foreach (var l in order) w.WriteLine(l);
+            written += perCopy;
+        }
+        w.Close();
+        File.Move(path + ".tmp", path);
+        return path;
+    }
+}
+
+/// <summary>Plain text of the GCIDE dictd database: pronunciations (\...\), bracketed notes ([...]) and braces removed;
+/// "Syn:" lines dropped (they are synonym lists, which would make a synonym check trivial).</summary>
+internal static class GcideText
+{
+    public static IEnumerable<string> Lines(string dictDz)
+    {
+        using var f = File.OpenRead(dictDz);
+        using var gz = new GZipStream(f, CompressionMode.Decompress);
+        using var r = new StreamReader(gz, Encoding.UTF8);
+        string? line;
+        bool inSyn = false;
+        while ((line = r.ReadLine()) is not null)
+        {
+            var t = line.Trim();
+            if (t.StartsWith("Syn:", StringComparison.Ordinal)) { inSyn = true; continue; }
+            if (inSyn && line.StartsWith("     ", StringComparison.Ordinal) && t.Length > 0) continue;
+            inSyn = false;
+            t = Regex.Replace(t, @"\\[^\\]*\\", "");
+            t = Regex.Replace(t, @"\[[^\]]*\]", "");
+            t = t.Replace("{", "").Replace("}", "");
+            yield return t;
+        }
+    }
+}
