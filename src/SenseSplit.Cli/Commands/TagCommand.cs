@@ -56,7 +56,7 @@ public static class TagCommand
     }
 
     /// <summary>Finds and assigns occurrences; the term names are JSON-encoded once.</summary>
-    internal sealed class Tagger
+    public sealed class Tagger
     {
         private readonly SenseModel _model;
         private readonly IReadOnlyList<TermSenses> _results;

@@ -14,7 +14,7 @@ namespace SenseSplit.Core.Senses;
 /// </summary>
 /// <remarks>The shape follows the facts of Arora, Li, Liang, Ma &amp; Risteski (2018), TACL 6, §5: a discourse mixes
 /// 3–4 atoms, a word uses up to 5 with the last ones often noise, a small share of atoms are meaningless.</remarks>
-internal sealed record PlantedSenseModel(
+public sealed record PlantedSenseModel(
     WordVectors Vectors, float[] Atoms, int AtomCount, SparseCodes Codes, long[] Counts,
     int[] AtomTopic, int[][] WordTopics, int Topics, int[] GenericAtoms)
 {
