@@ -25,7 +25,7 @@ public class AtomsCommandTests
         // Defaults are DictionaryOptions' (the CLI defaults by its own documentation) and --remove-top 0.
         string[] withDefaults =
         [
-            "--atoms <K>", "[default: 2000]", "--sparsity <S>", "[default: 5]", "--rounds <R>", "[default: 30]",
+            "--atoms <K>", "[default: 2000]", "--sparsity <S>", "[default: 5]", "--rounds <R>", $"[default: {new SenseSplit.Core.SparseCoding.DictionaryOptions().MaxRounds}]",
             "--tolerance <T>", "[default: 0.001]", "--seed <N>", "[default: 1]", "--threads <T>", "--remove-top <N>",
         ];
         foreach (var s in withDefaults) Assert.Contains(s, output);
