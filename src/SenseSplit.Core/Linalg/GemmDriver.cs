@@ -75,7 +75,7 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
                 {
                     PackB(local, (float*)bp, 0, colUnits);
                     Block(local, (float*)bp, 0, m, 0, n, lowerTriangle);
-                    if (lowerTriangle) MirrorLower(local, 0, m);
+                    if (lowerTriangle) MirrorLower(local, 0, (m + MirrorBlock - 1) / MirrorBlock);
                 }
                 else
                 {
@@ -89,8 +89,11 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
                         else Block(local, (float*)bp, 0, m, u0 * nr, Math.Min(n, u1 * nr), false);
                     });
                     if (lowerTriangle)
-                        Parallel.For(0, parts, options, part => MirrorLower(local,
-                            Math.Min(m, Share(units, parts, part, true) * mr), Math.Min(m, Share(units, parts, part + 1, true) * mr)));
+                    {
+                        int blocks = (m + MirrorBlock - 1) / MirrorBlock;
+                        Parallel.For(0, parts, options, part =>
+                            MirrorLower(local, Share(blocks, parts, part, true), Share(blocks, parts, part + 1, true)));
+                    }
                 }
             }
         }
@@ -108,32 +111,61 @@ internal static unsafe class GemmDriver<TKernel> where TKernel : struct, IGemmMi
     private static int Share(int units, int parts, int part, bool triangle)
         => triangle ? (part >= parts ? units : (int)Math.Round(units * Math.Sqrt((double)part / parts))) : Share(units, parts, part);
 
-    /// <summary>C[j, i] = C[i, j] for rows i0 ≤ i &lt; i1 and j &lt; i, in 32-column strips so the written lines stay in L1.</summary>
-    private static void MirrorLower(in GemmJob job, int i0, int i1)
+    /// <summary>Rows per mirror block: 16 floats = one cache line and one zmm register.</summary>
+    private const int MirrorBlock = 16;
+
+    /// <summary>
+    /// C[j, i] = C[i, j] for j &lt; i, for the rows of 16-row blocks b0..b1-1: every 16×16 block below the diagonal
+    /// is transposed onto its mirror image (whole cache lines in and out; AVX-512 in registers, else scalar), and
+    /// the diagonal block copies its strictly lower part.
+    /// </summary>
+    private static void MirrorLower(in GemmJob job, int b0, int b1)
     {
-        const int strip = 32;
+        const int w = MirrorBlock;
         float* c = job.C;
         long ldc = job.Ldc;
-        for (int jb = 0; jb < i1; jb += strip)
+        int m = job.M;
+        for (int bi = b0; bi < b1; bi++)
         {
-            for (int i = Math.Max(i0, jb + 1); i < i1; i++)
+            int i = bi * w, rows = Math.Min(w, m - i);
+            for (int j = 0; j < i; j += w)
             {
-                int jEnd = Math.Min(jb + strip, i);
-                float* row = c + i * ldc;
-                for (int j = jb; j < jEnd; j++) c[j * ldc + i] = row[j];
+                if (rows == w && GemmTranspose.IsSupported)
+                {
+                    GemmTranspose.Transpose16(c + i * ldc + j, ldc, c + j * ldc + i, ldc);
+                    continue;
+                }
+                for (int s = 0; s < w; s++)
+                    for (int r = 0; r < rows; r++) c[(j + s) * ldc + i + r] = c[(i + r) * ldc + j + s];
             }
+            for (int r = 1; r < rows; r++)
+                for (int s = 0; s < r; s++) c[(i + s) * ldc + i + r] = c[(i + r) * ldc + i + s];
         }
     }
 
-    /// <summary>Packs B rows into panels q0..q1: panel q holds rows q·NR.. as [k][NR], zero-padded past row n.</summary>
+    /// <summary>Packs B rows into panels q0..q1: panel q holds rows q·NR.. as [k][NR], zero-padded past row n;
+    /// 16×16 blocks go through the in-register transpose when NR is a multiple of 16.</summary>
     private static void PackB(in GemmJob job, float* packed, int q0, int q1)
     {
         int nr = TKernel.NR, k = job.K;
+        bool blocks = nr % 16 == 0 && GemmTranspose.IsSupported;
         for (int q = q0; q < q1; q++)
         {
             float* dst = packed + (long)q * nr * k;
             int rows = Math.Min(nr, job.N - q * nr);
-            for (int r = 0; r < rows; r++)
+            int r0 = 0;
+            if (blocks)
+            {
+                for (; r0 + 16 <= rows; r0 += 16)
+                {
+                    float* src = job.B + (long)(q * nr + r0) * job.Ldb;
+                    int p = 0;
+                    for (; p + 16 <= k; p += 16) GemmTranspose.Transpose16(src + p, job.Ldb, dst + p * nr + r0, nr);
+                    for (; p < k; p++)
+                        for (int r = 0; r < 16; r++) dst[p * nr + r0 + r] = src[r * job.Ldb + p];
+                }
+            }
+            for (int r = r0; r < rows; r++)
             {
                 float* src = job.B + (long)(q * nr + r) * job.Ldb;
                 for (int p = 0; p < k; p++) dst[p * nr + r] = src[p];
