@@ -168,10 +168,12 @@ public static class EmbedCommand
             var table = new WordTable();
             PhraseSet? phraseSet = null;
             if (s.PhraseList is not null) phraseSet = LoadPhraseList(s.PhraseList, table, tokenizer, context);
-            var counter1 = new VocabularyCounter(table, phraseSet is null ? null : new PhraseJoiner(phraseSet));
+            using var spool = new CorpusIdSpool(Path.Combine(tempRoot, "ids.bin"));
+            var counter1 = new VocabularyCounter(table, phraseSet is null ? null : new PhraseJoiner(phraseSet), spool);
             var scanner = new TokenScanner(tokenizer);
             var hashes = ReadAll(corpus, reader, scanner, counter1, err, "pass 1 (vocabulary)", () => counter1.Tokens, totalBytes, timings, "vocabulary");
             long invalidBytes = reader.InvalidBytes;
+            spool.Close();
             if (counter1.Tokens == 0)
                 throw new UserFacingException($"empty corpus: no tokens in {string.Join(", ", corpus.Select(c => c.Name))}");
 
@@ -182,9 +184,7 @@ public static class EmbedCommand
                 var candidates = Vocabulary.Select(table, s.MinCount, s.MaxWords);
                 var bigrams = new BigramCounter();
                 var mapper = new TokenIdMapper(table, candidates.TableIdToWordId, null, bigrams);
-                var scanner2 = new TokenScanner(tokenizer);
-                var hashes2 = ReadAll(corpus, reader, scanner2, mapper, err, "pass 2 (phrases)", () => bigrams.Bigrams, totalBytes, null, null);
-                CheckUnchanged(corpus, hashes, hashes2);
+                Replay(spool, mapper, err, "pass 2 (phrases, replaying token ids)", () => bigrams.Bigrams, null, null);
                 var chosen = PhraseScorer.Select(bigrams.Pairs(), w => candidates.Counts[w], counter1.Tokens, bigrams.Bigrams, s.PhraseMinCount, s.PhraseThreshold);
                 phraseSet = new PhraseSet();
                 var ids = new int[2];
@@ -228,9 +228,7 @@ public static class EmbedCommand
                     Window = s.Window, WindowAcrossLines = s.WindowAcrossLines, Threads = threads, MemoryBytes = s.MemoryBytes,
                 }, store);
                 var mapper = new TokenIdMapper(table, vocab.TableIdToWordId, phraseSet is null ? null : new PhraseJoiner(phraseSet), counter);
-                var scanner3 = new TokenScanner(tokenizer);
-                var hashes3 = ReadAll(corpus, reader, scanner3, mapper, err, "pass " + (s.Phrases ? "3" : "2") + " (co-occurrences)", () => counter.Tokens, totalBytes, timings, "counting");
-                CheckUnchanged(corpus, hashes, hashes3);
+                Replay(spool, mapper, err, "pass " + (s.Phrases ? "3" : "2") + " (co-occurrences, replaying token ids)", () => counter.Tokens, timings, "counting");
                 var sw = Stopwatch.StartNew();
                 counts = counter.Complete();
                 spilled = counter.SpilledRuns;
@@ -350,10 +348,13 @@ public static class EmbedCommand
         return hashes;
     }
 
-    private static void CheckUnchanged(List<CorpusInput> corpus, List<string> first, List<string> again)
+    private static void Replay(CorpusIdSpool spool, TokenIdMapper mapper, TextWriter err, string pass, Func<long> tokens,
+        Dictionary<string, double>? timings, string? timingName)
     {
-        for (int i = 0; i < corpus.Count; i++)
-            if (first[i] != again[i]) throw new UserFacingException($"input {corpus[i].Name} changed while it was being read (SHA-256 differs between passes)");
+        var progress = new CorpusProgress(err, pass, spool.Bytes, tokens);
+        spool.Replay(mapper, progress.Report);
+        err.WriteLine(progress.Summary());
+        if (timings is not null && timingName is not null) timings[timingName] = progress.Elapsed.TotalSeconds;
     }
 
     private static PhraseSet LoadPhraseList(string path, WordTable table, TokenizerOptions tokenizer, CliContext context)

@@ -17,6 +17,12 @@ public sealed class TokenIdMapper(WordTable table, int[] tableToWord, PhraseJoin
         if (joiner is null) Id(id); else joiner.Push(id, this);
     }
 
+    /// <summary>A table id from a replayed id stream (not yet phrase-joined).</summary>
+    public void TableId(int id)
+    {
+        if (joiner is null) Id(id); else joiner.Push(id, this);
+    }
+
     public void LineBreak()
     {
         joiner?.Flush(this);

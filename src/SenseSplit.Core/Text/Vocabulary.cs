@@ -69,11 +69,14 @@ public sealed class VocabularyCounter : ITokenSink, IIdSink
 {
     private readonly WordTable _table;
     private readonly PhraseJoiner? _joiner;
+    private readonly IIdSink? _forward;
 
-    public VocabularyCounter(WordTable table, PhraseJoiner? joiner = null)
+    /// <param name="forward">Optional: receives the (joined) table-id stream with its breaks, e.g. to spool it for later passes.</param>
+    public VocabularyCounter(WordTable table, PhraseJoiner? joiner = null, IIdSink? forward = null)
     {
         _table = table ?? throw new ArgumentNullException(nameof(table));
         _joiner = joiner;
+        _forward = forward;
     }
 
     /// <summary>Tokens counted (after phrase joining, a phrase counts once).</summary>
@@ -85,8 +88,17 @@ public sealed class VocabularyCounter : ITokenSink, IIdSink
         if (_joiner is null) Id(id); else _joiner.Push(id, this);
     }
 
-    public void LineBreak() => _joiner?.Flush(this);
-    public void ParagraphBreak() => _joiner?.Flush(this);
+    public void LineBreak()
+    {
+        _joiner?.Flush(this);
+        _forward?.LineBreak();
+    }
+
+    public void ParagraphBreak()
+    {
+        _joiner?.Flush(this);
+        _forward?.ParagraphBreak();
+    }
 
     void IIdSink.LineBreak() { }
     void IIdSink.ParagraphBreak() { }
@@ -95,5 +107,6 @@ public sealed class VocabularyCounter : ITokenSink, IIdSink
     {
         _table.Add(id, 1);
         Tokens++;
+        _forward?.Id(id);
     }
 }

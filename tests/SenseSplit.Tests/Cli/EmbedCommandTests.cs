@@ -303,12 +303,14 @@ public sealed class EmbedSpillTests : IDisposable
         string corpus = Path.Combine(_dir, "c.txt");
         File.WriteAllText(corpus, sb.ToString());
         var err1 = new StringWriter();
-        Assert.Equal(0, CliApp.Run(["embed", corpus, "--out", Path.Combine(_dir, "small"), "--dim", "6", "--memory", "16M", "--min-count", "1"], new StringWriter(), err1));
+        string temp = Path.Combine(_dir, "temp");
+        Directory.CreateDirectory(temp);
+        Assert.Equal(0, CliApp.Run(["embed", corpus, "--out", Path.Combine(_dir, "small"), "--dim", "6", "--memory", "16M", "--min-count", "1", "--temp-dir", temp], new StringWriter(), err1));
         Assert.Equal(0, CliApp.Run(["embed", corpus, "--out", Path.Combine(_dir, "big"), "--dim", "6", "--min-count", "1"], new StringWriter(), new StringWriter()));
         using var manifest = JsonDocument.Parse(File.ReadAllText(Path.Combine(_dir, "small", "manifest.json")));
         Assert.True(manifest.RootElement.GetProperty("spilledRuns").GetInt32() > 0, err1.ToString());
         Assert.Equal(File.ReadAllBytes(Path.Combine(_dir, "big", "vectors.txt")), File.ReadAllBytes(Path.Combine(_dir, "small", "vectors.txt")));
         // The temporary run files are gone.
-        Assert.Empty(Directory.GetDirectories(Path.GetTempPath(), $"sensesplit-embed-{Environment.ProcessId}-*"));
+        Assert.Empty(Directory.GetFileSystemEntries(temp));
     }
 }
