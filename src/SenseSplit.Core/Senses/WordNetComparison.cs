@@ -21,6 +21,28 @@ public sealed record SenseCountComparison(int Words, int MatchedBins, double Mon
 /// the ranks, ties given their mean rank (C. Spearman 1904).</remarks>
 public static class WordNetComparison
 {
+    /// <summary>Audits every word of <paramref name="dictionarySenses"/> (word → dictionary sense count, e.g. read from
+    /// WordNet's index files) that the model knows and has a count for, and compares. Found = senses of the audit
+    /// (0 for a term left with no sense). Returns the pairs too, for a per-word listing.</summary>
+    public static (SenseCountComparison comparison, IReadOnlyList<SenseCountPair> pairs) FromModel(
+        SenseModel model, IReadOnlyDictionary<string, int> dictionarySenses, int polysemousMin = 5)
+    {
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(dictionarySenses);
+        if (model.Counts is null) throw new ArgumentException("the comparison matches words on frequency: the model needs word counts");
+        var words = dictionarySenses.Where(kv => kv.Value > 0 && model.IndexOf(kv.Key) >= 0)
+            .OrderBy(kv => kv.Key, StringComparer.Ordinal).ToArray();
+        var results = model.Analyze(words.Select(kv => TermQuery.From(kv.Key)).ToArray());
+        var pairs = new SenseCountPair[words.Length];
+        for (int i = 0; i < words.Length; i++)
+        {
+            var r = results[i];
+            pairs[i] = new SenseCountPair(words[i].Key, r.Verdict == Verdict.Several ? r.Senses.Count : Math.Min(1, r.Senses.Count),
+                words[i].Value, model.Counts[model.IndexOf(words[i].Key)]);
+        }
+        return (Compare(pairs, polysemousMin), pairs);
+    }
+
     public static SenseCountComparison Compare(IReadOnlyList<SenseCountPair> pairs, int polysemousMin = 5)
     {
         ArgumentNullException.ThrowIfNull(pairs);

@@ -188,4 +188,40 @@ public class AuditCommandTests
         Assert.Equal(ExitCodes.Ok, code);
         Assert.True(File.Exists(Path.Combine(dir, "o", "report.html")));
     }
+
+    [Fact]
+    public void Run_SensesAndTagWithModelFolder_EndToEnd()
+    {
+        var dir = AuditFixtures.TempDir();
+        var modelDir = Path.Combine(dir, "model");
+        ModelFolder.Write(modelDir, Model.Value);
+        var output = new StringWriter();
+        var err = new StringWriter();
+        Assert.Equal(ExitCodes.Ok, CliApp.Run(["senses", "--model", modelDir, "bass", "--json"], output, err));
+        using (var doc = JsonDocument.Parse(output.ToString()))
+            Assert.Equal("several", doc.RootElement.GetProperty("verdict").GetString());
+        var input = Path.Combine(dir, "text.txt");
+        File.WriteAllText(input, "A bass guitar, drum and melody filled the song.\nThe angler caught a bass with bait near the trout.\n");
+        output = new StringWriter();
+        Assert.Equal(ExitCodes.Ok, CliApp.Run(["tag", "--model", modelDir, "--terms", AuditFixtures.File("glossary-plain.txt"), "--input", input], output, err));
+        var lines = output.ToString().Split('\n', StringSplitOptions.RemoveEmptyEntries);
+        Assert.Equal(2, lines.Length);
+        var senses = lines.Select(l => { using var d = JsonDocument.Parse(l); return d.RootElement.GetProperty("sense").GetInt32(); }).ToArray();
+        Assert.NotEqual(senses[0], senses[1]); // music bass and fish bass go to different senses
+    }
+
+    [Fact]
+    public void Run_AuditWithOtherVectorsFile_BadInput()
+    {
+        var dir = AuditFixtures.TempDir();
+        var modelDir = Path.Combine(dir, "model");
+        ModelFolder.Write(modelDir, Model.Value with { Manifest = Model.Value.Manifest with { VectorsSha256 = new string('0', 64) } });
+        var vec = Path.Combine(dir, "other.vec");
+        File.WriteAllText(vec, "1 2\na 1 0\n");
+        var err = new StringWriter();
+        int code = CliApp.Run(["audit", "--model", modelDir, "--terms", AuditFixtures.File("glossary-plain.txt"), "--out", Path.Combine(dir, "o"), "--vectors", vec], new StringWriter(), err);
+        Assert.Equal(ExitCodes.BadInput, code);
+        Assert.Contains("is not the one the model in", err.ToString());
+        Assert.False(Directory.Exists(Path.Combine(dir, "o")));
+    }
 }

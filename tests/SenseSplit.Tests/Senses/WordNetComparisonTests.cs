@@ -42,4 +42,25 @@ public class WordNetComparisonTests
         Assert.Equal(1.0, r.PolysemousSeveral, 12);
         Assert.Equal(WordNetComparison.Spearman(pairs.Select(p => (double)p.Found).ToArray(), pairs.Select(p => (double)p.Dictionary).ToArray()), r.Spearman, 12);
     }
+
+    [Fact]
+    public void FromModel_NamedModel_TwoSenseWordsCountTwo()
+    {
+        // Dictionary sense counts here are invented for the constructed model (bank, bass, mouse planted with two senses).
+        var c = NamedModel.Build();
+        var model = SenseModel.Build(c.Vectors, c.Atoms, c.AtomCount, c.Codes, c.Counts);
+        var table = new Dictionary<string, int> { ["bank"] = 10, ["bass"] = 8, ["mouse"] = 6, ["loan"] = 1, ["guitar"] = 1, ["trout"] = 1, ["rain"] = 1, ["oven"] = 1, ["notaword"] = 3 };
+        var (comparison, pairs) = WordNetComparison.FromModel(model, table);
+        Assert.Equal(8, pairs.Count); // "notaword" is not in the vocabulary
+        Assert.All(pairs, p => Assert.Equal(p.Dictionary >= 5 ? 2 : 1, p.Found));
+        Assert.Equal(WordNetComparison.Compare(pairs), comparison);
+        // By hand: ranks of found = (7,7,7,3,3,3,3,3), of the dictionary = (8,7,6,3,3,3,3,3) (pairs sorted by word:
+        // bank, bass, mouse first after reordering); Sxy = 30, Sxx = 30, Syy = 32, so ρ = 30/√960.
+        Assert.Equal(30 / Math.Sqrt(960), comparison.Spearman, 10);
+        if (comparison.MatchedBins > 0)
+        {
+            Assert.Equal(1.0, comparison.MonosemousMean, 12);
+            Assert.Equal(2.0, comparison.PolysemousMean, 12);
+        }
+    }
 }
