@@ -185,8 +185,8 @@ internal static class BuiltInRun
             var v2 = Vector(c2, x2, t2);
             var merged = Vector([.. c1, .. c2], [.. x1, .. x2], t1 + t2);
             fits.Add(new PairFit(p, MixtureFit.Fit(merged, v1, v2)));
-            ownCosines.Add(Cosine(v1, vectors.Row(p.FrequentIndex)[..rank]));
-            ownCosines.Add(Cosine(v2, vectors.Row(p.RareIndex)[..rank]));
+            ownCosines.Add(MergeTestSteps.Cosine(v1, vectors.Row(p.FrequentIndex)[..rank]));
+            ownCosines.Add(MergeTestSteps.Cosine(v2, vectors.Row(p.RareIndex)[..rank]));
             if ((i & 15) == 0) cancellation.ThrowIfCancellationRequested();
         }
         double ownMedian = WeightLaws.Median(ownCosines.Where(double.IsFinite));
@@ -266,8 +266,9 @@ internal static class BuiltInRun
         cancellation.ThrowIfCancellationRequested();
 
         progress.Stage("aligning the re-embedding");
-        var (rotated, fit, shared) = MergeTestSteps.Align(original, merged, pairs, VectorsPath(folder), "the re-embedding of the merged corpus", progress);
-        progress.EndStage($"{shared.ToString(C)} shared words, relative residual {fit.RelativeResidualBefore.ToString("F3", C)} before, {fit.RelativeResidual.ToString("F3", C)} after");
+        var alignment = MergeTestSteps.Align(original, merged, pairs, VectorsPath(folder), "the re-embedding of the merged corpus", progress);
+        var rotated = alignment.Pseudo;
+        progress.EndStage(MergeTestSteps.AlignmentLine(alignment));
 
         var fits = new List<PairFit>();
         var pseudo = new List<string>();
@@ -285,11 +286,7 @@ internal static class BuiltInRun
         if (fits.Count == 0) throw new UserFacingException("no pseudo-word made the re-embedding's vocabulary");
         run["fit_against"] = "stored vectors of w1 and w2";
         run["retrain_words"] = vocab.Count;
-        run["alignment"] = "orthogonal procrustes, re-embedding onto original";
-        run["alignment_words"] = shared;
-        run["alignment_residual_before"] = fit.RelativeResidualBefore;
-        run["alignment_residual_after"] = fit.RelativeResidual;
-        run["alignment_reflection"] = fit.IsReflection;
+        MergeTestSteps.Describe(alignment, "re-embedding onto original", run, notes, s.Thresholds);
         run["context_smoothing"] = settings.ContextSmoothing;
         run["neg"] = settings.Neg;
         run["eigen_weight"] = settings.EigenWeight;
@@ -336,13 +333,6 @@ internal static class BuiltInRun
                 : $"phrase list {settings.PhraseList} is gone; joining only the phrases in the embedding's vocabulary");
         }
         return set.Count == 0 ? null : set;
-    }
-
-    private static double Cosine(ReadOnlySpan<float> a, ReadOnlySpan<float> b)
-    {
-        double ab = 0, aa = 0, bb = 0;
-        for (int i = 0; i < a.Length; i++) { ab += (double)a[i] * b[i]; aa += (double)a[i] * a[i]; bb += (double)b[i] * b[i]; }
-        return aa > 0 && bb > 0 ? ab / Math.Sqrt(aa * bb) : double.NaN;
     }
 
     private sealed class PhraseWords : ITokenSink

@@ -17,6 +17,10 @@ internal sealed record ChosenPairs(PairSelection Selection, string[] PseudoWords
         => Pairs.Select((p, i) => (p.FrequentWord, p.RareWord, PseudoWords[i])).ToList();
 }
 
+/// <summary>The result of rotating one embedding onto another: each pseudo-word's rotated vector (null where missing),
+/// the Procrustes fit, the words it rests on, and the median cosine of those words to themselves after rotation.</summary>
+internal sealed record Alignment(float[]?[] Pseudo, ProcrustesResult Fit, int SharedWords, double MedianCosineShared);
+
 /// <summary>Steps shared by the three ways of running the merge test: choosing or checking pairs, aligning two
 /// embeddings, fitting, judging and writing the report.</summary>
 internal static class MergeTestSteps
@@ -109,7 +113,7 @@ internal static class MergeTestSteps
     /// hold that the merge did not touch (neither word of a pair, nor a pseudo-word), and returns the rotated vector of
     /// every pseudo-word (null where the merged embedding has none) with the fit.
     /// </summary>
-    public static (float[]?[] Pseudo, ProcrustesResult Fit, int SharedWords) Align(WordVectors original, WordVectors merged,
+    public static Alignment Align(WordVectors original, WordVectors merged,
         ChosenPairs pairs, string originalName, string mergedName, ProgressDisplay progress)
     {
         int dims = original.Dimensions;
@@ -135,6 +139,13 @@ internal static class MergeTestSteps
             original.Row(shared[k].Original).CopyTo(target.AsSpan(k * dims, dims));
         }
         var fit = Procrustes.Fit(source, target, shared.Count, dims);
+        // The noise floor: how close the untouched words come to themselves after the rotation.
+        var aligned = new float[source.Length];
+        Procrustes.Apply(source, shared.Count, fit, aligned);
+        var cosines = new double[shared.Count];
+        for (int k = 0; k < shared.Count; k++)
+            cosines[k] = Cosine(aligned.AsSpan(k * dims, dims), target.AsSpan(k * dims, dims));
+        double floor = WeightLaws.Median(cosines.Where(double.IsFinite));
         var rotated = new float[]?[pairs.PseudoWords.Length];
         for (int p = 0; p < rotated.Length; p++)
         {
@@ -143,8 +154,31 @@ internal static class MergeTestSteps
             Procrustes.Apply(merged.Row(row), 1, fit, v);
             rotated[p] = v;
         }
-        return (rotated, fit, shared.Count);
+        return new Alignment(rotated, fit, shared.Count, floor);
     }
+
+    /// <summary>Records what an alignment found in <paramref name="run"/> and prints it.</summary>
+    public static void Describe(Alignment a, string what, Dictionary<string, object?> run, List<string> notes, VerdictThresholds thresholds)
+    {
+        run["alignment"] = $"orthogonal procrustes, {what}";
+        run["alignment_words"] = a.SharedWords;
+        run["alignment_residual_before"] = a.Fit.RelativeResidualBefore;
+        run["alignment_residual_after"] = a.Fit.RelativeResidual;
+        run["alignment_reflection"] = a.Fit.IsReflection;
+        run["alignment_median_cosine"] = double.IsFinite(a.MedianCosineShared) ? a.MedianCosineShared : null;
+        if (a.MedianCosineShared < thresholds.MinMedianCosine)
+            notes.Add($"untouched words come back with a median cosine of only {a.MedianCosineShared.ToString("F3", C)} to their original vectors after alignment; the two embeddings differ this much even where nothing was merged, so a pseudo-word's cosine to span cannot be expected to be higher");
+    }
+
+    public static double Cosine(ReadOnlySpan<float> a, ReadOnlySpan<float> b)
+    {
+        double ab = 0, aa = 0, bb = 0;
+        for (int i = 0; i < a.Length; i++) { ab += (double)a[i] * b[i]; aa += (double)a[i] * a[i]; bb += (double)b[i] * b[i]; }
+        return aa > 0 && bb > 0 ? ab / Math.Sqrt(aa * bb) : double.NaN;
+    }
+
+    public static string AlignmentLine(Alignment a)
+        => $"{a.SharedWords.ToString(C)} shared words, relative residual {a.Fit.RelativeResidualBefore.ToString("F3", C)} before, {a.Fit.RelativeResidual.ToString("F3", C)} after; median cosine of untouched words to themselves {a.MedianCosineShared.ToString("F3", C)}";
 
     public static Dictionary<string, int> Index(string[] words)
     {

@@ -70,8 +70,9 @@ internal static class ScoreRun
         cancellation.ThrowIfCancellationRequested();
 
         progress.Stage("aligning the merged embedding");
-        var (rotated, fit, shared) = MergeTestSteps.Align(original, merged, pairs, s.Original, s.Merged, progress);
-        progress.EndStage($"{shared.ToString(C)} shared words, relative residual {fit.RelativeResidualBefore.ToString("F3", C)} before, {fit.RelativeResidual.ToString("F3", C)} after");
+        var alignment = MergeTestSteps.Align(original, merged, pairs, s.Original, s.Merged, progress);
+        var rotated = alignment.Pseudo;
+        progress.EndStage(MergeTestSteps.AlignmentLine(alignment));
 
         var fits = new List<PairFit>(pairs.Pairs.Count);
         for (int i = 0; i < pairs.Pairs.Count; i++)
@@ -87,12 +88,9 @@ internal static class ScoreRun
         run["counts"] = Path.GetFullPath(s.Counts);
         run["dimensions"] = original.Dimensions;
         run["vectors_normalised"] = false;
-        run["alignment"] = "orthogonal procrustes, merged onto original";
-        run["alignment_words"] = shared;
-        run["alignment_residual_before"] = fit.RelativeResidualBefore;
-        run["alignment_residual_after"] = fit.RelativeResidual;
-        run["alignment_reflection"] = fit.IsReflection;
+        var notes = new List<string>(selection.Notes);
+        MergeTestSteps.Describe(alignment, "merged onto original", run, notes, s.Thresholds);
         return MergeTestSteps.Finish(context, progress, s.Out, fits, pseudo, s.Selection with { Pairs = rows.Count },
-            s.Thresholds, run, selection.Notes);
+            s.Thresholds, run, notes);
     }
 }
