@@ -17,6 +17,7 @@ public static class CliApp
         root.Subcommands.Add(AuditCommand.Create(context));
         root.Subcommands.Add(SensesCommand.Create(context));
         root.Subcommands.Add(TagCommand.Create(context));
+        root.Subcommands.Add(MergeTestCommand.Create(context));
         root.Subcommands.Add(DemoCommand.Create(context));
         return root;
     }

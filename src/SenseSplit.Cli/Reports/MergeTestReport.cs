@@ -110,8 +110,14 @@ public static class MergeTestReport
         Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping,
     };
 
+    /// <summary>Column added to <c>pairs.csv</c> when the pseudo-word names are given.</summary>
+    public const string PseudoColumn = "pseudo";
+
     /// <summary>Writes all three files into <paramref name="directory"/> (created when missing).</summary>
-    public static void Write(string directory, MergeTestOutcome outcome, IReadOnlyDictionary<string, object?>? run = null)
+    /// <param name="pseudoWords">The pseudo-word of each pair (same order as the outcome's pairs); when given,
+    /// <c>pairs.csv</c> ends with a <c>pseudo</c> column, so it can be read back as a pairs file.</param>
+    public static void Write(string directory, MergeTestOutcome outcome, IReadOnlyDictionary<string, object?>? run = null,
+        IReadOnlyList<string>? pseudoWords = null)
     {
         ArgumentNullException.ThrowIfNull(outcome);
         try { Directory.CreateDirectory(directory); }
@@ -119,7 +125,7 @@ public static class MergeTestReport
         {
             throw new UserFacingException($"{directory}: cannot create the output folder ({ex.Message})", ExitCodes.WriteFailed);
         }
-        WritePairs(Path.Combine(directory, PairsFile), outcome.Pairs);
+        WritePairs(Path.Combine(directory, PairsFile), outcome.Pairs, pseudoWords);
         WriteSummary(Path.Combine(directory, SummaryFile), outcome, run);
         WriteAtomically(Path.Combine(directory, ChartFile), stream =>
         {
@@ -128,18 +134,23 @@ public static class MergeTestReport
         });
     }
 
-    /// <summary>Writes <c>pairs.csv</c>: w1, w2, f1, f2, r, alpha, beta, cosine_to_span, residual (empty where undefined).</summary>
-    public static void WritePairs(string path, IReadOnlyList<PairFit> pairs)
+    /// <summary>Writes <c>pairs.csv</c>: w1, w2, f1, f2, r, alpha, beta, cosine_to_span, residual (empty where
+    /// undefined), then pseudo when <paramref name="pseudoWords"/> is given.</summary>
+    public static void WritePairs(string path, IReadOnlyList<PairFit> pairs, IReadOnlyList<string>? pseudoWords = null)
     {
         ArgumentNullException.ThrowIfNull(pairs);
+        if (pseudoWords is not null && pseudoWords.Count != pairs.Count)
+            throw new ArgumentException($"{pairs.Count} pairs but {pseudoWords.Count} pseudo-words", nameof(pseudoWords));
         WriteAtomically(path, stream =>
         {
             using var writer = new StreamWriter(stream, new UTF8Encoding(false));
             using var csv = new CsvWriter(writer, CultureInfo.InvariantCulture);
             foreach (var column in PairColumns) csv.WriteField(column);
+            if (pseudoWords is not null) csv.WriteField(PseudoColumn);
             csv.NextRecord();
-            foreach (var p in pairs)
+            for (int i = 0; i < pairs.Count; i++)
             {
+                var p = pairs[i];
                 csv.WriteField(p.Pair.FrequentWord);
                 csv.WriteField(p.Pair.RareWord);
                 csv.WriteField(p.Pair.FrequentCount.ToString(CultureInfo.InvariantCulture));
@@ -149,6 +160,7 @@ public static class MergeTestReport
                 csv.WriteField(Number(p.Fit.Beta));
                 csv.WriteField(Number(p.Fit.CosineToSpan));
                 csv.WriteField(Number(p.Fit.RelativeResidual));
+                if (pseudoWords is not null) csv.WriteField(pseudoWords[i]);
                 csv.NextRecord();
             }
         });

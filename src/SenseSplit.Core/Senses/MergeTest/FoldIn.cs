@@ -1,30 +1,33 @@
 namespace SenseSplit.Core.Senses.MergeTest;
 
 /// <summary>
-/// Smoothed positive PMI of one word's co-occurrence row against fixed context statistics:
-/// PPMI(w,c) = max(0, ln( P(w,c) / (P(w) · P_α(c)) )) with P(w,c) = #(w,c)/D, P(w) = #(w)/D and
-/// P_α(c) = #(c)^α / Σ_c' #(c')^α (α = 0.75 by default). Context totals #(c) have one entry per context; D is the
-/// total count.
+/// Smoothed, optionally shifted positive PMI of one word's co-occurrence row against fixed context statistics:
+/// PPMI(w,c) = max(0, ln( P(w,c) / (P(w) · P_α(c)) ) − ln k) with P(w,c) = #(w,c)/D, P(w) = #(w)/D and
+/// P_α(c) = #(c)^α / Σ_c' #(c')^α (α = 0.75 and k = 1 by default). Context totals #(c) have one entry per context;
+/// D is the total count.
 /// </summary>
 /// <remarks>
-/// Context-distribution smoothing is that of Levy, Goldberg &amp; Dagan 2015, "Improving distributional similarity
-/// with lessons learned from word embeddings", TACL 3, §3.2 (eq. for PMI_α). The natural logarithm and the absence of a
-/// shift (k = 1) follow the embed pipeline's PPMI; if that pipeline changes its base or adds a shift, this must follow.
-/// When #(w) is the row sum and D the sum of all rows, D cancels; it is kept so the formula matches a pipeline that
-/// takes #(w) from another count.
+/// Context-distribution smoothing and the shift are those of Levy, Goldberg &amp; Dagan 2015, "Improving
+/// distributional similarity with lessons learned from word embeddings", TACL 3, eq. (3) and §3.2. Natural logarithm,
+/// as the embed pipeline's <see cref="SenseSplit.Core.Cooccurrence.Ppmi"/> (whose <c>--neg</c> is k); the
+/// embed-side formula ln(X_wc·Z / (#(w)·#(c)^α)) − ln k is the same number once D cancels, which it does when #(w) is
+/// the row sum and D the sum of all rows. D is kept so the formula matches a pipeline that takes #(w) from another count.
 /// </remarks>
 public sealed class PpmiWeighting
 {
     private readonly double[] _contextTotals;
     private readonly double _smoothedSum;
+    private readonly double _logShift;
 
     /// <param name="contextTotals">#(c) for every context (length = contexts), finite and non-negative.</param>
     /// <param name="totalCount">D, the total count, positive.</param>
     /// <param name="smoothing">α in (0, 1]; 1 turns smoothing off.</param>
-    public PpmiWeighting(ReadOnlySpan<double> contextTotals, double totalCount, double smoothing = 0.75)
+    /// <param name="shift">k ≥ 1, subtracted as ln k before clipping; 1 is no shift.</param>
+    public PpmiWeighting(ReadOnlySpan<double> contextTotals, double totalCount, double smoothing = 0.75, double shift = 1)
     {
         Guard.Positive(contextTotals.Length);
         if (!(smoothing > 0 && smoothing <= 1)) throw new ArgumentOutOfRangeException(nameof(smoothing), smoothing, $"smoothing ({smoothing}) must lie in (0, 1]");
+        if (!(shift >= 1) || !double.IsFinite(shift)) throw new ArgumentOutOfRangeException(nameof(shift), shift, $"shift ({shift}) must be finite and at least 1");
         if (!(totalCount > 0) || !double.IsFinite(totalCount)) throw new ArgumentOutOfRangeException(nameof(totalCount), totalCount, $"total count ({totalCount}) must be positive and finite");
         double sum = 0;
         for (int c = 0; c < contextTotals.Length; c++)
@@ -38,11 +41,14 @@ public sealed class PpmiWeighting
         _smoothedSum = sum;
         TotalCount = totalCount;
         Smoothing = smoothing;
+        Shift = shift;
+        _logShift = Math.Log(shift);
     }
 
     public int Contexts => _contextTotals.Length;
     public double TotalCount { get; }
     public double Smoothing { get; }
+    public double Shift { get; }
 
     /// <summary>P_α(c) = #(c)^α / Σ_c' #(c')^α.</summary>
     public double SmoothedContextProbability(int context)
@@ -70,7 +76,7 @@ public sealed class PpmiWeighting
             if (_contextTotals[c] <= 0) throw new ArgumentException($"co-occurrence row: context {c} has count {n} but a context total of 0");
             double pwc = n / TotalCount;
             double pc = Math.Pow(_contextTotals[c], Smoothing) / _smoothedSum;
-            ppmi[c] = Math.Max(0, Math.Log(pwc / (pw * pc)));
+            ppmi[c] = Math.Max(0, Math.Log(pwc / (pw * pc)) - _logShift);
         }
     }
 }
