@@ -18,7 +18,7 @@ public static class DemoCommand
         var seed = new Option<int>("--seed") { Description = "Seed of the corpus generator and of every later step (default 7).", DefaultValueFactory = _ => 7 };
         var atoms = new Option<int>("--atoms") { Description = "Atoms to learn (default 120: the demo vocabulary is small).", DefaultValueFactory = _ => 120 };
         var dim = new Option<int>("--dim") { Description = "Embedding dimensions (default 100).", DefaultValueFactory = _ => 100 };
-        var command = new Command("demo", "Generate the built-in Quillhaven corpus and run embed, atoms and audit on it; print a scorecard against the planted senses.")
+        var command = new Command("demo", "Generate the built-in Quillhaven corpus and run embed, atoms, audit and the merge test on it; print a scorecard against the planted senses.")
         {
             output, tokens, seed, atoms, dim,
         };
@@ -39,7 +39,7 @@ public static class DemoCommand
             string embedding = Path.Combine(outDir, "embedding");
             string model = Path.Combine(outDir, "model");
             string audit = Path.Combine(outDir, "audit");
-            const int steps = 4;
+            const int steps = 5;
 
             context.Err.WriteLine($"[1/{steps}] writing the {scenario.Name} corpus ({tokens.ToString("N0", CultureInfo.InvariantCulture)} tokens) to {corpus}");
             var settings = new DiscourseSettings { Tokens = tokens, Seed = seed };
@@ -64,9 +64,17 @@ public static class DemoCommand
             context.Err.WriteLine($"[4/{steps}] audit: senses of the glossary terms");
             Step(context, "audit", ["--model", model, "--terms", glossary, "--corpus", corpus, "--out", audit]);
 
+            context.Err.WriteLine($"[5/{steps}] merge test: does the embedding keep merged word pairs apart?");
+            string mergeDir = Path.Combine(outDir, "merge-test");
+            int mergeCode = CliApp.Run(["merge-test", "--corpus", corpus, "--embedding", embedding, "--out", mergeDir, "--seed", S(seed)], TextWriter.Null, context.Err);
+            if (mergeCode is not (ExitCodes.Ok or ExitCodes.MergeTestFailed))
+                throw new UserFacingException($"demo: the merge-test step failed (exit code {mergeCode}); see the messages above", mergeCode);
+            string mergeVerdict = mergeCode == ExitCodes.Ok ? "pass" : "fail";
+
             var score = Score(scenario, generator, Path.Combine(audit, "senses.jsonl"));
-            WriteScorecard(Path.Combine(outDir, "scorecard.json"), score, clock.Elapsed.TotalSeconds, tokens, seed);
+            WriteScorecard(Path.Combine(outDir, "scorecard.json"), score, clock.Elapsed.TotalSeconds, tokens, seed, mergeVerdict);
             PrintScorecard(context.Err, score);
+            context.Err.WriteLine($"  merge test of the demo embedding: {mergeVerdict} (details in {Path.Combine(mergeDir, "merge-test.json")})");
             context.Err.WriteLine($"report: {Path.GetFullPath(Path.Combine(audit, "report.html"))}");
             context.Err.WriteLine($"demo finished in {ProgressDisplay.FormatSeconds(clock.Elapsed)}");
             context.Out.WriteLine(Path.GetFullPath(Path.Combine(outDir, "scorecard.json")));
@@ -108,7 +116,7 @@ public static class DemoCommand
         return DemoScorecard.Score(scenario, topicWords, audited);
     }
 
-    private static void WriteScorecard(string path, DemoScore s, double seconds, long tokens, int seed)
+    private static void WriteScorecard(string path, DemoScore s, double seconds, long tokens, int seed, string mergeVerdict)
     {
         var json = new
         {
@@ -120,6 +128,7 @@ public static class DemoCommand
             true_positives = s.TruePositives,
             planted_senses = s.PlantedSenses,
             senses_found = s.SensesFound,
+            merge_test_verdict = mergeVerdict,
             matches = s.Matches.Select(m => new { term = m.Term, topic = m.Topic, share = m.Share, audit_sense = m.AuditSense, overlap = m.Overlap }),
             tokens,
             seed,

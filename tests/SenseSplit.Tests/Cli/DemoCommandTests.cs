@@ -28,5 +28,7 @@ public class DemoCommandTests
         Assert.True(found >= planted * 0.7, $"{found} of {planted} planted senses found");
         Assert.True(File.Exists(Path.Combine(outDir, "audit", "report.html")));
         Assert.True(File.Exists(Path.Combine(outDir, "truth.json")));
+        Assert.Contains(root.GetProperty("merge_test_verdict").GetString(), new[] { "pass", "fail" });
+        Assert.True(File.Exists(Path.Combine(outDir, "merge-test", "merge-test.json")));
     }
 }
