@@ -120,6 +120,24 @@ public sealed class EmbedCommandTests : IDisposable
         Assert.Contains($"'shape': ({words.Length}, 10)", header);
         Assert.Equal(10 + headerLength + words.Length * 10 * 4, npy.Length);
         Assert.Contains("done:", err);
+        // Progress and summary of every pass on stderr.
+        Assert.Contains("pass 1 (vocabulary):", err);
+        Assert.Contains("pass 2 (co-occurrences", err);
+        Assert.Contains("M tokens/s", err);
+        Assert.Contains("SVD: 10 dimensions", err);
+    }
+
+    [Fact]
+    public void Embed_FoldNumbers_CountsTheMarker()
+    {
+        var sb = new StringBuilder();
+        for (int i = 0; i < 400; i++) sb.Append("year ").Append(1900 + i % 100).Append(" price 3.").Append(i % 10).Append(" dollars\n");
+        string corpus = Write("numbers.txt", sb.ToString());
+        var (code, _, err) = Run("embed", corpus, "--out", Path.Combine(_dir, "out"), "--dim", "2", "--fold-numbers");
+        Assert.True(code == 0, err);
+        var counts = File.ReadAllLines(Path.Combine(_dir, "out", "counts.tsv"));
+        Assert.Equal("<num>\t800", counts[1]);
+        Assert.DoesNotContain(counts, l => l.StartsWith("19", StringComparison.Ordinal));
     }
 
     [Fact]
