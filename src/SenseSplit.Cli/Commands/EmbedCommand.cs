@@ -207,7 +207,7 @@ public static class EmbedCommand
             {
                 long best = 0;
                 for (int i = 0; i < table.Count; i++) best = Math.Max(best, table.CountOf(i));
-                throw new UserFacingException($"vocabulary is empty: no word occurs at least --min-count {s.MinCount} times (the most frequent occurs {best} times)");
+                throw new UserFacingException($"vocabulary is empty: no word of {string.Join(", ", corpus.Select(c => c.Name))} occurs at least --min-count {s.MinCount} times (the most frequent occurs {best} times)");
             }
             if (vocab.Count < 2) throw new UserFacingException($"vocabulary has a single word ('{vocab.Words[0]}'): nothing to embed; lower --min-count");
             int dims = s.Dimensions;

@@ -263,6 +263,7 @@ public sealed class EmbedCommandTests : IDisposable
         Assert.Equal(ExitCodes.BadInput, code);
         Assert.Contains("vocabulary is empty", err);
         Assert.Contains("--min-count 5", err);
+        Assert.Contains("rare.txt", err);
     }
 
     [Fact]
