@@ -128,6 +128,28 @@ public sealed class EmbedCommandTests : IDisposable
     }
 
     [Fact]
+    public void Embed_OneLineOfSeveralMegabytes_IsStreamed()
+    {
+        // 3 MB without a line end (longer than the reader's 1 MB chunks), plus a 300-letter junk token split over chunks.
+        var rng = new Random(10);
+        var sb = new StringBuilder();
+        string[] words = ["alpha", "beta", "gamma", "delta", "epsilon", "zeta", "eta", "theta"];
+        while (sb.Length < 3_000_000)
+        {
+            sb.Append(words[rng.Next(words.Length)]).Append(' ');
+            if (sb.Length > 1_048_000 && sb.Length < 1_048_600) sb.Append(new string('q', 300)).Append(' ');
+        }
+        string corpus = Write("long.txt", sb.ToString());
+        var (code, _, err) = Run("embed", corpus, "--out", Path.Combine(_dir, "out"), "--dim", "3");
+        Assert.True(code == 0, err);
+        using var manifest = JsonDocument.Parse(File.ReadAllText(Path.Combine(_dir, "out", "manifest.json")));
+        Assert.Equal(8, manifest.RootElement.GetProperty("words").GetInt32());
+        Assert.True(manifest.RootElement.GetProperty("overlongTokensDropped").GetInt64() >= 1);
+        long total = File.ReadAllLines(Path.Combine(_dir, "out", "counts.tsv")).Skip(1).Sum(l => long.Parse(l.Split('\t')[1], System.Globalization.CultureInfo.InvariantCulture));
+        Assert.Equal(sb.ToString().Split(' ', StringSplitOptions.RemoveEmptyEntries).Count(w => w[0] != 'q'), total);
+    }
+
+    [Fact]
     public void Embed_FoldNumbers_CountsTheMarker()
     {
         var sb = new StringBuilder();
