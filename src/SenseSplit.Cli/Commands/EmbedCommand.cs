@@ -207,7 +207,7 @@ public static class EmbedCommand
             {
                 long best = 0;
                 for (int i = 0; i < table.Count; i++) best = Math.Max(best, table.CountOf(i));
-                throw new UserFacingException($"vocabulary is empty: no word occurs at least --min-count {s.MinCount} times (the most frequent occurs {best} times)");
+                throw new UserFacingException($"vocabulary is empty: no word of {string.Join(", ", corpus.Select(c => c.Name))} occurs at least --min-count {s.MinCount} times (the most frequent occurs {best} times)");
             }
             if (vocab.Count < 2) throw new UserFacingException($"vocabulary has a single word ('{vocab.Words[0]}'): nothing to embed; lower --min-count");
             int dims = s.Dimensions;
@@ -242,6 +242,9 @@ public static class EmbedCommand
             var wordCounts = counts.WordCounts;
             long countedTokens = counts.Tokens;
             counts = null!;
+            // The counts, the word table's pass-1 state and the counter's tables are garbage now: free them before the
+            // SVD allocates its tall buffers, so the peak is max(counting, SVD) rather than their sum.
+            GC.Collect(2, GCCollectionMode.Forced, blocking: true);
             timings["ppmi"] = swPpmi.Elapsed.TotalSeconds;
             err.WriteLine(string.Create(C, $"PPMI: {ppmi.Matrix.NonZeros} positive entries in {swPpmi.Elapsed.TotalSeconds:F1} s"));
             if (ppmi.Matrix.NonZeros == 0) throw new UserFacingException("no word pair has positive PMI: the corpus is too small or too uniform to embed");
@@ -256,12 +259,12 @@ public static class EmbedCommand
             if (svd.Rank < dims) context.Warn($"the PPMI matrix has numerical rank {svd.Rank} < {dims}: the last {dims - svd.Rank} dimensions are zero");
 
             // Word vectors U·Σ^p (Levy, Goldberg & Dagan 2015, §3.3 "eigenvalue weighting").
-            var vectors = new float[(long)vocab.Count * dims];
-            for (int j = 0; j < dims; j++)
-            {
-                float w = svd.SingularValues[j] > 0 ? (float)Math.Pow(svd.SingularValues[j], s.EigenWeight) : 0f;
-                for (int i = 0; i < vocab.Count; i++) vectors[(long)i * dims + j] = svd.U[(long)i * dims + j] * w;
-            }
+            // Scaled in place: U is not needed afterwards.
+            var vectors = svd.U;
+            var weights = new float[dims];
+            for (int j = 0; j < dims; j++) weights[j] = svd.SingularValues[j] > 0 ? (float)Math.Pow(svd.SingularValues[j], s.EigenWeight) : 0f;
+            for (int i = 0; i < vocab.Count; i++)
+                System.Numerics.Tensors.TensorPrimitives.Multiply(vectors.AsSpan(i * dims, dims), weights, vectors.AsSpan(i * dims, dims));
 
             var swWrite = Stopwatch.StartNew();
             string staging = outDir.TrimEnd(Path.DirectorySeparatorChar) + $".partial-{Guid.NewGuid():N}";

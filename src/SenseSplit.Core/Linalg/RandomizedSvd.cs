@@ -62,11 +62,11 @@ public static class RandomizedSvd
         int threads = options.Threads > 0 ? options.Threads : Environment.ProcessorCount;
         int m = a.Rows, n = a.Columns;
 
-        var q = FindRange(a, at, k, options, threads, progress, out int l);
+        var q = FindRange(a, at, k, options, threads, progress, out int l, out var spare);
 
-        // Stage B (Algorithm 5.1): Bᵀ = AᵀQ, B Bᵀ = W Σ² Wᵀ.
+        // Stage B (Algorithm 5.1): Bᵀ = AᵀQ, B Bᵀ = W Σ² Wᵀ. Bᵀ reuses a scratch buffer of stage A (n × l or larger).
         progress?.Report("final projection");
-        var bt = new float[(long)n * l];
+        var bt = spare;
         at.Multiply(q, l, bt, threads);
         var h = Gram(bt, n, l, threads);
         var evd = Matrix<double>.Build.DenseOfArray(h).Evd(MathNet.Numerics.LinearAlgebra.Symmetricity.Symmetric);
@@ -99,7 +99,11 @@ public static class RandomizedSvd
 
     /// <summary>Stage A (Algorithm 4.4): an orthonormal basis Q (m × l) of the dominant range of A; l may drop below k + p on rank deficiency.</summary>
     internal static float[] FindRange(SparseMatrix a, SparseMatrix at, int k, RandomizedSvdOptions options, int threads,
-        IProgress<string>? progress, out int l)
+        IProgress<string>? progress, out int l) => FindRange(a, at, k, options, threads, progress, out l, out _);
+
+    /// <param name="spare">A scratch buffer of at least columns × l floats that the caller may reuse.</param>
+    private static float[] FindRange(SparseMatrix a, SparseMatrix at, int k, RandomizedSvdOptions options, int threads,
+        IProgress<string>? progress, out int l, out float[] spare)
     {
         int m = a.Rows, n = a.Columns;
         l = Math.Min(k + options.Oversample, Math.Min(m, n));
@@ -123,6 +127,7 @@ public static class RandomizedSvd
             a.Multiply(zq, l, y, threads);
             q = Orthonormalize(y, y == tallM ? tallM2 : tallM, m, ref l, it == options.PowerIterations - 1 ? 2 : 1, threads);
         }
+        spare = tallN;
         return q;
     }
 

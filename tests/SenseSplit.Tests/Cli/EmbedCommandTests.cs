@@ -120,6 +120,46 @@ public sealed class EmbedCommandTests : IDisposable
         Assert.Contains($"'shape': ({words.Length}, 10)", header);
         Assert.Equal(10 + headerLength + words.Length * 10 * 4, npy.Length);
         Assert.Contains("done:", err);
+        // Progress and summary of every pass on stderr.
+        Assert.Contains("pass 1 (vocabulary):", err);
+        Assert.Contains("pass 2 (co-occurrences", err);
+        Assert.Contains("M tokens/s", err);
+        Assert.Contains("SVD: 10 dimensions", err);
+    }
+
+    [Fact]
+    public void Embed_OneLineOfSeveralMegabytes_IsStreamed()
+    {
+        // 3 MB without a line end (longer than the reader's 1 MB chunks), plus a 300-letter junk token split over chunks.
+        var rng = new Random(10);
+        var sb = new StringBuilder();
+        string[] words = ["alpha", "beta", "gamma", "delta", "epsilon", "zeta", "eta", "theta"];
+        while (sb.Length < 3_000_000)
+        {
+            sb.Append(words[rng.Next(words.Length)]).Append(' ');
+            if (sb.Length > 1_048_000 && sb.Length < 1_048_600) sb.Append(new string('q', 300)).Append(' ');
+        }
+        string corpus = Write("long.txt", sb.ToString());
+        var (code, _, err) = Run("embed", corpus, "--out", Path.Combine(_dir, "out"), "--dim", "3");
+        Assert.True(code == 0, err);
+        using var manifest = JsonDocument.Parse(File.ReadAllText(Path.Combine(_dir, "out", "manifest.json")));
+        Assert.Equal(8, manifest.RootElement.GetProperty("words").GetInt32());
+        Assert.True(manifest.RootElement.GetProperty("overlongTokensDropped").GetInt64() >= 1);
+        long total = File.ReadAllLines(Path.Combine(_dir, "out", "counts.tsv")).Skip(1).Sum(l => long.Parse(l.Split('\t')[1], System.Globalization.CultureInfo.InvariantCulture));
+        Assert.Equal(sb.ToString().Split(' ', StringSplitOptions.RemoveEmptyEntries).Count(w => w[0] != 'q'), total);
+    }
+
+    [Fact]
+    public void Embed_FoldNumbers_CountsTheMarker()
+    {
+        var sb = new StringBuilder();
+        for (int i = 0; i < 400; i++) sb.Append("year ").Append(1900 + i % 100).Append(" price 3.").Append(i % 10).Append(" dollars\n");
+        string corpus = Write("numbers.txt", sb.ToString());
+        var (code, _, err) = Run("embed", corpus, "--out", Path.Combine(_dir, "out"), "--dim", "2", "--fold-numbers");
+        Assert.True(code == 0, err);
+        var counts = File.ReadAllLines(Path.Combine(_dir, "out", "counts.tsv"));
+        Assert.Equal("<num>\t800", counts[1]);
+        Assert.DoesNotContain(counts, l => l.StartsWith("19", StringComparison.Ordinal));
     }
 
     [Fact]
@@ -245,6 +285,7 @@ public sealed class EmbedCommandTests : IDisposable
         Assert.Equal(ExitCodes.BadInput, code);
         Assert.Contains("vocabulary is empty", err);
         Assert.Contains("--min-count 5", err);
+        Assert.Contains("rare.txt", err);
     }
 
     [Fact]
