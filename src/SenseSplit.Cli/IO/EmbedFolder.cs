@@ -95,15 +95,25 @@ public sealed record EmbedFolder(string Directory, WordVectors Vectors, long[] C
 
             string vectorsPath = Path.Combine(directory, files.GetValueOrDefault("vectors", "vectors.txt"));
             string countsPath = Path.Combine(directory, files.GetValueOrDefault("counts", "counts.tsv"));
-            var load = VectorFile.Read(vectorsPath, null, warn, cancellation);
-            var vectors = load.Vectors;
-            if (load.ZeroRowsSkipped > 0 || load.DuplicateRowsSkipped > 0 || vectors.Count != words || vectors.Dimensions != dims)
-                throw new UserFacingException($"{vectorsPath}: holds {vectors.Count} usable vectors of {vectors.Dimensions} dimensions ({load.ZeroRowsSkipped} zero, {load.DuplicateRowsSkipped} repeated rows skipped) but {manifestPath} says {words} words of {dims} dimensions; the folder was changed after embed wrote it");
-            var countMap = CountsFile.Read(countsPath, warn);
-            var counts = new long[words];
+            // counts.tsv lists the whole vocabulary in word-id order (the order of the basis rows); vectors.txt has the same
+            // order but the vector reader skips all-zero rows (words whose PPMI row vanished), which come back as zeros.
+            var (vocabulary, counts) = ReadVocabulary(countsPath, words);
+            var load = VectorFile.Read(vectorsPath, null, null, cancellation);
+            if (load.Vectors.Dimensions != dims)
+                throw new UserFacingException($"{vectorsPath}: has {load.Vectors.Dimensions} dimensions but {manifestPath} says {dims}; the folder was changed after embed wrote it");
+            var rowOf = new Dictionary<string, int>(load.Vectors.Count, StringComparer.Ordinal);
+            for (int i = 0; i < load.Vectors.Count; i++) rowOf[load.Vectors.Words[i]] = i;
+            var values = new float[(long)words * dims];
+            int zero = 0;
             for (int i = 0; i < words; i++)
-                if (!countMap.TryGetValue(vectors.Words[i], out counts[i]))
-                    throw new UserFacingException($"{countsPath}: has no count for '{Printable.Word(vectors.Words[i])}' (row {i + 1} of {vectorsPath}); the folder was changed after embed wrote it");
+            {
+                if (rowOf.TryGetValue(vocabulary[i], out int r)) load.Vectors.Row(r).CopyTo(values.AsSpan(i * dims, dims));
+                else zero++;
+            }
+            if (load.DuplicateRowsSkipped > 0 || rowOf.Count + zero != words || zero != load.ZeroRowsSkipped)
+                throw new UserFacingException($"{vectorsPath}: does not hold one vector for each of the {words} words of {countsPath} ({load.Vectors.Count} read, {load.ZeroRowsSkipped} zero, {load.DuplicateRowsSkipped} repeated rows skipped); the folder was changed after embed wrote it");
+            if (zero > 0) warn?.Invoke($"{vectorsPath}: {zero} words have all-zero vectors (no positive PPMI); they are never put in a pair");
+            var vectors = new WordVectors(vocabulary, values, dims);
             return new EmbedFolder(directory, vectors, counts, settings, rank, inputs, files, pairTotal, smoothedTotal);
         }
     }
@@ -125,6 +135,32 @@ public sealed record EmbedFolder(string Directory, WordVectors Vectors, long[] C
         for (int j = 0; j < sv.Length; j++)
             if (!(sv[j] >= 0) || !double.IsFinite(sv[j])) throw new UserFacingException($"{svPath}: element {j}: {sv[j].ToString("R", CultureInfo.InvariantCulture)} is not a finite non-negative singular value");
         return new EmbedFoldInData(basis, sv, cc, PairTotal, SmoothedContextTotal);
+    }
+
+    /// <summary>embed's <c>counts.tsv</c>: the header <c>word&lt;TAB&gt;count</c>, then one line per word in word-id order.</summary>
+    internal static (string[] Words, long[] Counts) ReadVocabulary(string path, int expected)
+    {
+        if (!File.Exists(path)) throw new UserFacingException($"{path}: not found; an embed folder has the word counts there");
+        var words = new List<string>(expected);
+        var counts = new List<long>(expected);
+        var seen = new HashSet<string>(StringComparer.Ordinal);
+        int line = 0;
+        foreach (var text in File.ReadLines(path))
+        {
+            line++;
+            if (line == 1 && text == "word\tcount") continue;
+            if (text.Length == 0) continue;
+            int tab = text.LastIndexOf('\t');
+            if (tab <= 0 || !long.TryParse(text.AsSpan(tab + 1), NumberStyles.None, CultureInfo.InvariantCulture, out long count))
+                throw new UserFacingException($"{path}: line {line}: expected 'word<TAB>count', found '{Printable.Word(text)}'");
+            string word = text[..tab];
+            if (!seen.Add(word)) throw new UserFacingException($"{path}: line {line}: '{Printable.Word(word)}' appears twice");
+            words.Add(word);
+            counts.Add(count);
+        }
+        if (words.Count != expected)
+            throw new UserFacingException($"{path}: lists {words.Count} words but the manifest says {expected}; the folder was changed after embed wrote it");
+        return (words.ToArray(), counts.ToArray());
     }
 
     /// <summary>A 1-D float64 (or float32) .npy array of the given length.</summary>

@@ -78,6 +78,46 @@ public class PpmiWeightingTests
     }
 
     [Fact]
+    public void Weigh_ShiftedAndSmoothed_MatchesEmbedPipelinePpmi()
+    {
+        // The embed pipeline's PPMI (Cooccurrence.Ppmi.Value: ln(X·Z / (#(w)·#(c)^α)) − ln k) must give the same
+        // numbers as this weighting, so a folded-in row is weighted exactly as the stored rows were.
+        var rng = new Random(11);
+        int contexts = 29;
+        var totals = Enumerable.Range(0, contexts).Select(_ => (double)rng.Next(1, 900)).ToArray();
+        double alpha = 0.75, k = 5;
+        var weighting = new PpmiWeighting(totals, totals.Sum(), alpha, k);
+        var counts = Enumerable.Range(0, contexts).Select(_ => rng.NextDouble() < 0.3 ? 0 : rng.Next(1, 40) + 0.5).ToArray();
+        double rowTotal = counts.Sum();
+        var ppmi = new double[contexts];
+        weighting.Weigh(counts, rowTotal, ppmi);
+        double z = totals.Sum(t => Math.Pow(t, alpha));
+        for (int c = 0; c < contexts; c++)
+        {
+            double expected = SenseSplit.Core.Cooccurrence.Ppmi.Value(counts[c], rowTotal, Math.Pow(totals[c], alpha), z, Math.Log(k));
+            Assert.Equal(expected, ppmi[c], 12);
+        }
+    }
+
+    [Fact]
+    public void Weigh_Shift_SubtractsLogKThenClips()
+    {
+        // Shifted PPMI, Levy, Goldberg & Dagan 2015 §3.2: max(PMI − ln k, 0). One word, two equal contexts, no smoothing:
+        // the row [3, 1] against totals [4, 4] has PMI ln(3/4 / (1/2)) = ln 1.5 and ln(1/4 / (1/2)) = ln 0.5.
+        var plain = new PpmiWeighting([4, 4], 8, 1, 1);
+        var shifted = new PpmiWeighting([4, 4], 8, 1, 1.2);
+        var a = new double[2];
+        var b = new double[2];
+        plain.Weigh([3, 1], 4, a);
+        shifted.Weigh([3, 1], 4, b);
+        Assert.Equal(Math.Log(1.5), a[0], 12);
+        Assert.Equal(0, a[1]);
+        Assert.Equal(Math.Log(1.5) - Math.Log(1.2), b[0], 12);
+        Assert.Equal(0, b[1]);
+        Assert.Throws<ArgumentOutOfRangeException>(() => new PpmiWeighting([4, 4], 8, 1, 0.5));
+    }
+
+    [Fact]
     public void Constructor_BadSmoothing_Throws()
     {
         Assert.Throws<ArgumentOutOfRangeException>(() => new PpmiWeighting([1, 2], 3, 0));
