@@ -263,9 +263,10 @@ public sealed class MergeTestCommandTests : IDisposable
     public void Retrain_RareMerge_UntouchedWordsRealignWithTheOriginal()
     {
         // Re-embedding with embed's own settings after merging two rare words changes little else, so after Procrustes
-        // the untouched words must come back close to their stored vectors; a re-embedding with other settings (window,
-        // smoothing, seed) would not. The re-embedding's vocabulary loses one word per pair.
-        string corpus = CorpusAndEmbedding(5, 3000, "--dim", "10", "--min-count", "2", "--window", "4");
+        // the untouched words must come back close to their stored vectors. Measured on this corpus (seeded, so the
+        // figures are fixed): 0.995 with the right settings; 0.983 when the re-embedding's window is 2 wider and 0.89
+        // without context smoothing, both below the 0.99 asked for. The re-embedding's vocabulary loses one word per pair.
+        string corpus = CorpusAndEmbedding(5, 3000, "--dim", "30", "--min-count", "2", "--window", "4");
         _dir.Write("user.csv", $"w1,w2\n{Words[55]},{Words[60]}\n");
         var (code, _, stderr) = CliRunner.Run("merge-test", "--corpus", corpus, "--embedding", P("emb"), "--out", P("re"),
             "--pairs-file", P("user.csv"), "--retrain", "--min-pairs", "1", "--threads", "1");
