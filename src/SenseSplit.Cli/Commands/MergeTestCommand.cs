@@ -140,7 +140,7 @@ public static class MergeTestCommand
         private static readonly PairSelectionSettings Defaults = new();
         private readonly Option<int> _pairs = new("--pairs") { HelpName = "N", Description = "Pairs to choose.", DefaultValueFactory = _ => Defaults.Pairs };
         private readonly Option<int> _seed = new("--seed") { HelpName = "N", Description = "Seed of the pair choice (and of nothing else).", DefaultValueFactory = _ => Defaults.Seed };
-        private readonly Option<long> _minCount = new("--min-count") { HelpName = "N", Description = "Least count of the rarer word of a pair.", DefaultValueFactory = _ => Defaults.MinRareCount };
+        private readonly Option<long> _minCount = new("--min-rare-count") { HelpName = "N", Description = "Least corpus count of the rarer word of a pair.", DefaultValueFactory = _ => Defaults.MinRareCount };
         private readonly Option<double> _maxRatio = new("--max-ratio") { HelpName = "R", Description = "Largest frequency ratio f1/f2 of a chosen pair.", DefaultValueFactory = _ => Defaults.MaxRatio };
 
         public void AddTo(Command command)

@@ -186,7 +186,7 @@ public sealed class MergeTestCommandTests : IDisposable
         string corpus = CorpusAndEmbedding(2, 4000, "--dim", "12", "--min-count", "2");
         var counts = EmbedCounts();
         var (code, _, stderr) = CliRunner.Run("merge-test", "prepare", "--corpus", corpus, "--vectors", P("emb/vectors.txt"),
-            "--counts", P("emb/counts.tsv"), "--out", P("prep"), "--pairs", "6", "--min-count", "20", "--seed", "3");
+            "--counts", P("emb/counts.tsv"), "--out", P("prep"), "--pairs", "6", "--min-rare-count", "20", "--seed", "3");
         Assert.True(code == ExitCodes.Ok, stderr);
         var pairs = ReadCsv(P("prep/pairs.csv"));
         Assert.NotEmpty(pairs);
@@ -202,7 +202,7 @@ public sealed class MergeTestCommandTests : IDisposable
         }
         // Same seed, same pairs.
         Assert.Equal(ExitCodes.Ok, CliRunner.Run("merge-test", "prepare", "--corpus", corpus, "--vectors", P("emb/vectors.txt"),
-            "--counts", P("emb/counts.tsv"), "--out", P("prep2"), "--pairs", "6", "--min-count", "20", "--seed", "3").code);
+            "--counts", P("emb/counts.tsv"), "--out", P("prep2"), "--pairs", "6", "--min-rare-count", "20", "--seed", "3").code);
         Assert.Equal(File.ReadAllText(P("prep/pairs.csv")), File.ReadAllText(P("prep2/pairs.csv")));
     }
 
@@ -288,7 +288,7 @@ public sealed class MergeTestCommandTests : IDisposable
     {
         string corpus = CorpusAndEmbedding(6, 800, "--dim", "4", "--min-count", "2");
         string other = _dir.Write("other.txt", File.ReadAllText(corpus).Replace("Ka", "Lo"));
-        var (code, _, stderr) = CliRunner.Run("merge-test", "--corpus", other, "--embedding", P("emb"), "--out", P("x"), "--pairs", "2", "--min-count", "2");
+        var (code, _, stderr) = CliRunner.Run("merge-test", "--corpus", other, "--embedding", P("emb"), "--out", P("x"), "--pairs", "2", "--min-rare-count", "2");
         Assert.Equal(ExitCodes.BadInput, code);
         Assert.Contains($"input {other}: differs from", stderr);
         Assert.Contains("SHA-256", stderr);
