@@ -23,7 +23,7 @@ public static class MergeTestCommand
             "Check whether an embedding keeps two senses of a word apart: merge pairs of unrelated words into pseudo-words and see how much of the rarer word stays visible.");
         var corpus = CorpusOption("Corpus files (UTF-8 or gzip), folders (*.txt, *.txt.gz) or '-' for standard input: the corpus the embedding was made from.");
         var output = new Option<string>("--out") { HelpName = "DIR", Description = "Folder for pairs.csv, merge-test.json and merge-test.svg (created if missing; these files are replaced)." };
-        var embedding = new Option<string?>("--embedding") { HelpName = "DIR", Description = "Output folder of 'sensesplit embed' for this corpus. Without it the corpus is embedded first, with embed's defaults, into DIR/embedding." };
+        var embedding = new Option<string?>("--embedding") { HelpName = "DIR", Description = "Output folder of 'sensesplit embed' for this corpus. Without it the corpus is embedded first, with embed's defaults, into the embedding folder inside --out." };
         var retrain = new Option<bool>("--retrain") { Description = "Re-embed the whole merged corpus (as embed did, same settings) instead of folding the pseudo-words into the stored basis. Slower; the real test of whether the embedding keeps two words apart." };
         var pairsFile = PairsFileOption();
         var threads = new Option<int>("--threads") { HelpName = "N", Description = "Worker threads (0 = all cores). Results do not depend on it.", DefaultValueFactory = _ => 0 };
@@ -140,7 +140,7 @@ public static class MergeTestCommand
         private static readonly PairSelectionSettings Defaults = new();
         private readonly Option<int> _pairs = new("--pairs") { HelpName = "N", Description = "Pairs to choose.", DefaultValueFactory = _ => Defaults.Pairs };
         private readonly Option<int> _seed = new("--seed") { HelpName = "N", Description = "Seed of the pair choice (and of nothing else).", DefaultValueFactory = _ => Defaults.Seed };
-        private readonly Option<long> _minCount = new("--min-count") { HelpName = "N", Description = "Least count of the rarer word of a pair.", DefaultValueFactory = _ => Defaults.MinRareCount };
+        private readonly Option<long> _minCount = new("--min-rare-count") { HelpName = "N", Description = "Least corpus count of the rarer word of a pair.", DefaultValueFactory = _ => Defaults.MinRareCount };
         private readonly Option<double> _maxRatio = new("--max-ratio") { HelpName = "R", Description = "Largest frequency ratio f1/f2 of a chosen pair.", DefaultValueFactory = _ => Defaults.MaxRatio };
 
         public void AddTo(Command command)

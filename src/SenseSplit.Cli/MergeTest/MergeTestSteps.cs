@@ -55,7 +55,7 @@ internal static class MergeTestSteps
         {
             var selection = selector.Select(settings with { Excluded = unmergeable.ToHashSet(StringComparer.Ordinal) });
             if (selection.Pairs.Count == 0)
-                throw new UserFacingException($"{vectorsPath}: no pair of words could be chosen among {selection.EligibleWords.ToString(C)} words with count >= {settings.MinRareCount.ToString(C)} (lower --min-count, or name pairs with --pairs-file)");
+                throw new UserFacingException($"{vectorsPath}: no pair of words could be chosen among {selection.EligibleWords.ToString(C)} words with count >= {settings.MinRareCount.ToString(C)} (lower --min-rare-count, or name pairs with --pairs-file)");
             var names = selection.Pairs.Select(p => PseudoWord.Choose(p.FrequentWord, p.RareWord, known.Contains)).ToArray();
             return new ChosenPairs(selection, names);
         }
@@ -238,7 +238,7 @@ internal static class MergeTestSteps
     {
         void Fail(string message) => throw new UserFacingException(message, ExitCodes.Usage);
         if (s.Pairs < 1) Fail($"--pairs ({s.Pairs.ToString(C)}) must be at least 1");
-        if (s.MinRareCount < 1) Fail($"--min-count ({s.MinRareCount.ToString(C)}) must be at least 1");
+        if (s.MinRareCount < 1) Fail($"--min-rare-count ({s.MinRareCount.ToString(C)}) must be at least 1");
         if (!(s.MaxRatio > 1) || !double.IsFinite(s.MaxRatio)) Fail($"--max-ratio ({s.MaxRatio.ToString(C)}) must be a finite number above 1");
     }
 

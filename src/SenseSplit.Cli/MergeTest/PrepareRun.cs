@@ -59,7 +59,11 @@ internal static class PrepareRun
             foreach (var note in pairs.Selection.Notes) progress.Message($"note: {note}");
             cancellation.ThrowIfCancellationRequested();
 
-            Directory.CreateDirectory(s.Out);
+            try { Directory.CreateDirectory(s.Out); }
+            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+            {
+                throw new UserFacingException($"{s.Out}: cannot create the output folder ({e.Message})", ExitCodes.WriteFailed);
+            }
             var tokenizer = new TokenizerOptions { KeepCase = s.KeepCase, FoldNumbers = s.FoldNumbers };
             long[] replaced = WriteCorpus(corpus, tokenizer, pairs, s, context.Err, cancellation);
             MergePairsFile.Write(Path.Combine(s.Out, MergeTestReport.PairsFile), pairs.Pairs, pairs.PseudoWords);
