@@ -14,7 +14,7 @@ namespace SenseSplit.Core.Senses;
 /// different). The signals and their thresholds are described in docs/methods-senses.md.</remarks>
 internal static class SenseGrouping
 {
-    public static TermSenses Finish(SenseModel model, TermPlan plan, TermCorpusEvidence? evidence)
+    public static TermSenses Finish(SenseModel model, TermPlan plan, TermCorpusEvidence? evidence, bool applyPeerGate = true, bool groupsOnly = false)
     {
         var opt = model.Options;
         long? count = plan.Row >= 0 && model.Counts is not null ? model.Counts[plan.Row] : null;
@@ -54,16 +54,26 @@ internal static class SenseGrouping
             .Select(ix => (ix, weight: ix.Sum(i => (double)plan.Weights[i])))
             .OrderByDescending(g => g.weight).ThenBy(g => plan.Atoms[g.ix[0]])
             .ToList();
+        var vectors = groups.Select(g => SenseVector(model, plan, g.ix)).ToList();
         double total = groups.Sum(g => g.weight);
-        int d = model.Dimensions;
-        var vectors = groups.Select(g =>
+        double ambiguity = Ambiguity(groups.Select(g => total > 0 ? g.weight / total : 0).ToArray(), vectors);
+        if (groupsOnly)
+            return new TermSenses(plan.Query, groups.Count > 1 ? Verdict.Several : Verdict.Single, ambiguity, plan.Row, plan.Composed, count, [], pairs, plan.Dropped, notes, []);
+
+        // Peer gate: a split counts only when the term is more mixed than most words of about its frequency
+        // (docs/methods-senses.md, "Peer rank"); otherwise its facets are reported as one sense.
+        double? peerRank = applyPeerGate ? model.PeerRank(count, ambiguity) : null;
+        bool demoted = false;
+        if (groups.Count > 1 && peerRank is double pr && pr < opt.SeveralPeerRank)
         {
-            var v = new float[d];
-            foreach (int i in g.ix) TensorPrimitives.MultiplyAdd(model.Atom(plan.Atoms[i]), plan.Weights[i], v, v);
-            float n = TensorPrimitives.Norm(v);
-            if (n > 0) TensorPrimitives.Multiply(v, 1f / n, v);
-            return v;
-        }).ToList();
+            demoted = true;
+            notes.Add(string.Create(System.Globalization.CultureInfo.InvariantCulture,
+                $"its atoms form {groups.Count} groups, but it is more mixed than only {100 * pr:0}% of words of about its frequency (a split needs {100 * opt.SeveralPeerRank:0}%): reported as one sense"));
+            var all = Enumerable.Range(0, m).ToArray();
+            groups = [(all, all.Sum(i => (double)plan.Weights[i]))];
+            vectors = [SenseVector(model, plan, all)];
+            total = groups[0].weight;
+        }
         var component = new int[m];
         for (int gi = 0; gi < groups.Count; gi++) foreach (int i in groups[gi].ix) component[i] = gi;
 
@@ -104,23 +114,42 @@ internal static class SenseGrouping
                 cues, reasons.Count > 0, string.Join("; ", reasons)));
         }
 
-        double ambiguity = Ambiguity(senses);
         Verdict verdict = senses.Count == 1 ? Verdict.Single
             : senses.Count(s => !s.Doubtful) >= 2 ? Verdict.Several : Verdict.Doubtful;
-        return new TermSenses(plan.Query, verdict, ambiguity, plan.Row, plan.Composed, count, senses, pairs, plan.Dropped, notes, []);
+        return new TermSenses(plan.Query, verdict, ambiguity, plan.Row, plan.Composed, count, senses, pairs, plan.Dropped, notes, [])
+        {
+            PeerRank = peerRank,
+            Demoted = demoted,
+        };
     }
 
     /// <summary>Ambiguity = (1 − Σ_k share_k²) · (1 − max_{k&lt;l} max(0, cos(s_k, s_l))): the Gini–Simpson index of the
     /// sense shares (0 for one sense, 1/2 for two balanced ones) times how far apart the two closest senses are.</summary>
     internal static double Ambiguity(IReadOnlyList<SenseInfo> senses)
+        => Ambiguity(senses.Select(s => s.Share).ToArray(), senses.Select(s => s.Vector).ToList());
+
+    internal static double Ambiguity(IReadOnlyList<double> shares, IReadOnlyList<float[]> vectors)
     {
-        if (senses.Count < 2) return 0;
-        double gs = 1 - senses.Sum(s => s.Share * s.Share);
+        if (shares.Count < 2) return 0;
+        double gs = 1 - shares.Sum(s => s * s);
         double maxCos = 0;
-        for (int k = 0; k < senses.Count; k++)
-            for (int l = k + 1; l < senses.Count; l++)
-                maxCos = Math.Max(maxCos, TensorPrimitives.Dot(senses[k].Vector, senses[l].Vector));
+        for (int k = 0; k < vectors.Count; k++)
+            for (int l = k + 1; l < vectors.Count; l++)
+                maxCos = Math.Max(maxCos, TensorPrimitives.Dot(vectors[k], vectors[l]));
         return gs * (1 - maxCos);
+    }
+
+    /// <summary>Ambiguity of the grouping alone (no labels, neighbours or cues): what the peer table needs.</summary>
+    internal static double GroupAmbiguity(SenseModel model, TermPlan plan) => Finish(model, plan, null, applyPeerGate: false, groupsOnly: true).Ambiguity;
+
+    /// <summary>normalise(Σ_i weight_i · atom_i) over the plan's atoms <paramref name="ix"/>.</summary>
+    private static float[] SenseVector(SenseModel model, TermPlan plan, int[] ix)
+    {
+        var v = new float[model.Dimensions];
+        foreach (int i in ix) TensorPrimitives.MultiplyAdd(model.Atom(plan.Atoms[i]), plan.Weights[i], v, v);
+        float n = TensorPrimitives.Norm(v);
+        if (n > 0) TensorPrimitives.Multiply(v, 1f / n, v);
+        return v;
     }
 
     private static float[]?[] CentredMeans(TermCorpusEvidence e, int minCount)

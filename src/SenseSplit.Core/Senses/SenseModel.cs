@@ -117,6 +117,59 @@ public sealed class SenseModel
     public bool Eligible(int w) => Counts is null || Counts[w] >= Options.Naming.MinCount;
 
     private float[]? _gram;
+    private (long[] counts, double[] ambiguity)? _peers;
+    private readonly object _peerLock = new();
+
+    /// <summary>Share of peer words whose grouping ambiguity is below <paramref name="ambiguity"/> (ties half). Peers:
+    /// the <see cref="SenseOptions.PeerWindow"/> sampled vocabulary words nearest in count to <paramref name="count"/>,
+    /// or all sampled words when the count is unknown. Null with fewer than <see cref="SenseOptions.MinPeers"/>.</summary>
+    public double? PeerRank(long? count, double ambiguity)
+    {
+        var (counts, amb) = Peers();
+        int n = counts.Length;
+        if (n < Options.MinPeers || n == 0) return null;
+        int lo = 0, hi = n;
+        if (count is long c && Counts is not null && n > Options.PeerWindow)
+        {
+            // counts are ascending: centre a window of PeerWindow entries on the first count >= c.
+            int at = Array.BinarySearch(counts, c);
+            if (at < 0) at = ~at;
+            while (at > 0 && counts[at - 1] == c) at--;
+            lo = Math.Clamp(at - Options.PeerWindow / 2, 0, n - Options.PeerWindow);
+            hi = lo + Options.PeerWindow;
+        }
+        double below = 0;
+        for (int i = lo; i < hi; i++)
+            below += amb[i] < ambiguity - 1e-12 ? 1 : Math.Abs(amb[i] - ambiguity) <= 1e-12 ? 0.5 : 0;
+        return below / (hi - lo);
+    }
+
+    /// <summary>The peer table: up to PeerSample eligible words taken at even steps of the frequency order, with the
+    /// ambiguity of their own grouping (no corpus evidence, no gate), sorted by count. Built once, on first use.</summary>
+    private (long[] counts, double[] ambiguity) Peers()
+    {
+        if (_peers is { } ready) return ready;
+        lock (_peerLock)
+        {
+            if (_peers is { } built) return built;
+            var rows = Enumerable.Range(0, Vectors.Count).Where(Eligible)
+                .OrderBy(w => Counts is null ? 0 : Counts[w]).ThenBy(w => w).ToArray();
+            int take = Math.Min(Options.PeerSample, rows.Length);
+            var picked = new int[take];
+            for (int i = 0; i < take; i++) picked[i] = rows[(int)((long)i * rows.Length / Math.Max(1, take))];
+            var counts = new long[take];
+            var amb = new double[take];
+            Parallel.For(0, take, new ParallelOptions { MaxDegreeOfParallelism = Math.Max(1, Options.Naming.Threads <= 0 ? Environment.ProcessorCount : Options.Naming.Threads) }, i =>
+            {
+                int w = picked[i];
+                var plan = PlanFromCode(TermQuery.From(Vectors.Words[w]), w, false, Vectors.Row(w).ToArray(), Codes.AtomsOf(w), Codes.WeightsOf(w));
+                counts[i] = Counts is null ? 0 : Counts[w];
+                amb[i] = SenseGrouping.GroupAmbiguity(this, plan);
+            });
+            _peers = (counts, amb);
+            return _peers.Value;
+        }
+    }
 
     private SparseCodes DefaultEncoder(float[] vectors, int rows)
     {

@@ -25,6 +25,16 @@ public sealed record SenseOptions
     public int MinOccurrencesForVote { get; init; } = 5;
     /// <summary>"Same" votes needed to merge two atoms (below <see cref="SameCosine"/>).</summary>
     public int VotesToMerge { get; init; } = 2;
+    /// <summary>A term whose atoms form several groups is called "several" only when its ambiguity exceeds that of at
+    /// least this share of its peer words (our choice, calibrated on held-out words against WordNet:
+    /// docs/methods-senses.md). 0 turns the gate off.</summary>
+    public double SeveralPeerRank { get; init; } = 0.75;
+    /// <summary>Vocabulary words (spread evenly over the frequency order) whose ambiguity forms the peer table.</summary>
+    public int PeerSample { get; init; } = 4000;
+    /// <summary>Peers of a term: this many sampled words nearest to it in corpus count.</summary>
+    public int PeerWindow { get; init; } = 200;
+    /// <summary>With fewer sampled words than this, there is no peer rank and no gate.</summary>
+    public int MinPeers { get; init; } = 50;
     public int Neighbours { get; init; } = 10;
     public int Cues { get; init; } = 8;
     /// <summary>Context words taken on each side of an occurrence (our choice; Arora et al. 2018 use a comparable window).</summary>

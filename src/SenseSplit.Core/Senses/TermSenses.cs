@@ -88,4 +88,10 @@ public sealed record TermSenses(
 {
     public List<string> CorpusNotes { get; } = [];
     public int Occurrences { get; set; }
+    /// <summary>Share of peer words (vocabulary words of about the term's frequency) whose ambiguity is below the
+    /// term's, ties counted half; null when the model has too few words to compare with.</summary>
+    public double? PeerRank { get; init; }
+    /// <summary>The atoms formed several groups, but the peer rank was below the split threshold, so they are
+    /// reported as one sense.</summary>
+    public bool Demoted { get; init; }
 }
