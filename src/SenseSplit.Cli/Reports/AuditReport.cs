@@ -27,7 +27,7 @@ public sealed record AuditReport(
 
     /// <summary>Term indices in report order: verdict (several, doubtful, single, unknown), then ambiguity, then glossary order.</summary>
     public IReadOnlyList<int> Ranked() => Enumerable.Range(0, Results.Count)
-        .OrderBy(t => VerdictNames.Rank(Results[t].Verdict)).ThenByDescending(t => Results[t].Ambiguity).ThenBy(t => t).ToArray();
+        .OrderBy(t => VerdictNames.Rank(Results[t].Verdict)).ThenByDescending(t => Results[t].PeerRank ?? 0).ThenByDescending(t => Results[t].Ambiguity).ThenBy(t => t).ToArray();
 
     public string AtomLabel(int atom, int words = int.MaxValue)
     {

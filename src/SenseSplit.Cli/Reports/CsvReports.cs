@@ -31,7 +31,7 @@ public static class CsvReports
     }
 
     public static readonly string[] SenseColumns =
-        ["key", "verdict", "ambiguity", "senses", "sense", "atoms", "weight", "share", "label", "neighbours", "cues", "doubtful", "composed", "occurrences", "examples", "notes"];
+        ["key", "verdict", "ambiguity", "peer_rank", "senses", "sense", "atoms", "weight", "share", "label", "neighbours", "cues", "doubtful", "composed", "occurrences", "examples", "notes"];
 
     /// <summary>Our column names after the glossary's: a name the glossary already uses gets the prefix <c>audit_</c>.</summary>
     public static string[] OwnColumns(IReadOnlyList<string> glossaryColumns)
@@ -62,6 +62,7 @@ public static class CsvReports
                 csv.WriteField(r.Query.Key);
                 csv.WriteField(VerdictNames.Of(r.Verdict));
                 csv.WriteField(Fmt.N(r.Ambiguity));
+                csv.WriteField(r.PeerRank is double pr ? Fmt.N(pr) : "");
                 csv.WriteField(Fmt.I(r.Senses.Count));
             }
             if (r.Senses.Count == 0)

@@ -31,6 +31,7 @@ public static class JsonReports
         w.WriteString("key", r.Query.Key);
         w.WriteString("verdict", VerdictNames.Of(r.Verdict));
         w.WriteNumber("ambiguity", Math.Round(r.Ambiguity, 4));
+        if (r.PeerRank is double pr) w.WriteNumber("peer_rank", Math.Round(pr, 4)); else w.WriteNull("peer_rank");
         w.WriteBoolean("in_vocabulary", r.Row >= 0);
         w.WriteBoolean("composed", r.Composed);
         if (r.Count is long c) w.WriteNumber("count", c); else w.WriteNull("count");
