@@ -8,7 +8,8 @@ namespace SenseSplit.Tests.RealText;
 
 /// <summary>
 /// One model of real English shared by the real-text audit tests: all of GCIDE (≈ 4.7 M tokens after markup is
-/// stripped) embedded with the defaults except 30,000 words (PPMI-SVD, 300 dimensions), then 2,000 atoms with at most
+/// stripped) followed by all of FOLDOC (≈ 0.8 M tokens, so that computing senses of words such as "memory" or "virus"
+/// are in the vectors too), embedded with the defaults except 30,000 words (PPMI-SVD, 300 dimensions), then 2,000 atoms with at most
 /// 5 per word — the setting in which Arora, Li, Liang, Ma &amp; Risteski (2018, TACL 6, §5) describe atoms of real
 /// word vectors. Built once per test run through the CLI, in a temporary folder.
 /// </summary>
@@ -23,7 +24,8 @@ public sealed class GcideModelFixture : IDisposable
     public GcideModelFixture()
     {
         OpenCorpora.RequireGcide();
-        File.WriteAllLines(Corpus, OpenCorpora.GcideLines(), new UTF8Encoding(false));
+        OpenCorpora.RequireFoldoc();
+        File.WriteAllLines(Corpus, OpenCorpora.GcideLines().Concat(OpenCorpora.FoldocLines()), new UTF8Encoding(false));
         var log = new StringBuilder();
         Run(log, "embed", Corpus, "--out", Path.Combine(Folder, "embedding"), "--max-words", "30000", "--seed", "1");
         Run(log, "atoms", "--vectors", Path.Combine(Folder, "embedding", "vectors.txt"), "--counts", Path.Combine(Folder, "embedding", "counts.tsv"),
