@@ -31,7 +31,7 @@ public static class CsvReports
     }
 
     public static readonly string[] SenseColumns =
-        ["key", "verdict", "ambiguity", "peer_rank", "senses", "sense", "atoms", "weight", "share", "label", "neighbours", "cues", "doubtful", "composed", "occurrences", "examples", "notes"];
+        ["key", "verdict", "ambiguity", "peer_rank", "senses", "sense", "atoms", "weight", "share", "label", "neighbours", "cues", "doubtful", "from_corpus", "composed", "occurrences", "examples", "notes"];
 
     /// <summary>Our column names after the glossary's: a name the glossary already uses gets the prefix <c>audit_</c>.</summary>
     public static string[] OwnColumns(IReadOnlyList<string> glossaryColumns)
@@ -70,6 +70,7 @@ public static class CsvReports
                 Common();
                 for (int i = 0; i < 7; i++) csv.WriteField(""); // sense, atoms, weight, share, label, neighbours, cues
                 csv.WriteField(r.Verdict == Verdict.Unknown ? "" : "true"); // doubtful: no usable atom
+                csv.WriteField(""); // from_corpus
                 csv.WriteField(r.Composed ? "true" : "false");
                 csv.WriteField(hasCorpus && r.Verdict != Verdict.Unknown ? Fmt.I(r.Occurrences) : "");
                 csv.WriteField("");
@@ -88,6 +89,7 @@ public static class CsvReports
                 csv.WriteField(string.Join(' ', s.Neighbours));
                 csv.WriteField(string.Join(' ', s.Cues));
                 csv.WriteField(s.Doubtful ? "true" : "false");
+                csv.WriteField(s.FromCorpus ? "true" : "false");
                 csv.WriteField(r.Composed ? "true" : "false");
                 csv.WriteField(hasCorpus ? Fmt.I(s.Occurrences) : "");
                 csv.WriteField(string.Join(" | ", s.Examples.Select(e => e.Context)));

@@ -121,6 +121,7 @@ public static class HtmlReport
             {
                 w.Write($"<div class=\"sense{(s.Doubtful ? " doubt" : "")}\"><h4>Sense {Fmt.I(s.Id)} <span class=\"wt\">weight <b data-weight=\"{t}:{s.Id}\">{Fmt.N(s.Weight)}</b> · share {Fmt.N(s.Share)}</span></h4>");
                 if (s.Doubtful) w.Write($"<p class=\"why\">doubtful: {E(s.Reason)}</p>");
+                if (s.FromCorpus) w.Write("<p class=\"why\">found in the corpus: the term's contexts point to this atom, its vector does not carry it</p>");
                 w.Write("<dl><dt>Atoms</dt><dd>" + string.Join(" ", s.Atoms.Select((a, i) => $"<a href=\"#atom-{a}\">{Fmt.I(a)}</a> <small>({Fmt.N(s.AtomWeights[i])})</small>")) + "</dd>");
                 w.Write($"<dt>Label</dt><dd>{E(string.Join(", ", s.Label))}</dd>");
                 w.Write($"<dt>Neighbours</dt><dd>{E(string.Join(", ", s.Neighbours))}</dd>");

@@ -53,6 +53,7 @@ public static class JsonReports
             Strings(w, "neighbours", s.Neighbours);
             Strings(w, "cues", s.Cues);
             w.WriteBoolean("doubtful", s.Doubtful);
+            w.WriteBoolean("from_corpus", s.FromCorpus);
             w.WriteString("reason", s.Reason);
             if (corpus is not null) w.WriteNumber("occurrences", s.Occurrences); else w.WriteNull("occurrences");
             w.WriteStartArray("examples");

@@ -21,9 +21,29 @@ internal static class SenseGrouping
         if (plan.Unknown)
             return new TermSenses(plan.Query, Verdict.Unknown, 0, -1, false, null, [], [], [], plan.Notes, plan.CloseSpellings);
         var notes = new List<string>(plan.Notes);
-        int m = plan.Atoms.Length;
-        if (m == 0)
+        int kept = plan.Atoms.Length;
+        if (kept == 0)
             return new TermSenses(plan.Query, Verdict.Doubtful, 0, plan.Row, plan.Composed, count, [], [], plan.Dropped, notes, []);
+        // Atoms found in the corpus contexts join the plan after the code's atoms, with a weight proportional to the
+        // share of occurrences that point to them (see SenseAudit).
+        var corpusAtoms = evidence?.CorpusAtoms ?? [];
+        if (corpusAtoms.Count > 0)
+        {
+            double keptWeight = plan.Weights.Sum(w => (double)w);
+            int assigned = Math.Max(1, evidence!.Counts.Sum());
+            plan = plan with
+            {
+                Atoms = [.. plan.Atoms, .. corpusAtoms.Select(c => c.Atom)],
+                Weights = [.. plan.Weights, .. corpusAtoms.Select(c => (float)(keptWeight * c.Occurrences / assigned))],
+            };
+            evidence = evidence with
+            {
+                Sums = [.. evidence.Sums, .. corpusAtoms.Select(c => c.Sum)],
+                Counts = [.. evidence.Counts, .. corpusAtoms.Select(c => c.Occurrences)],
+            };
+        }
+        int m = plan.Atoms.Length;
+        bool FromCorpus(int i) => i >= kept;
 
         // Pairwise evidence and union–find over the kept atoms.
         var parent = Enumerable.Range(0, m).ToArray();
@@ -42,7 +62,8 @@ internal static class SenseGrouping
                     ? TensorPrimitives.CosineSimilarity(centred[i]!, centred[j]!) : double.NaN;
                 int votes = (cos >= opt.DifferentCosine ? 1 : 0) + (npmi >= opt.NpmiVote ? 1 : 0)
                     + (label >= opt.LabelVote ? 1 : 0) + (corpus >= opt.CorpusVote ? 1 : 0);
-                bool linked = cos >= opt.SameCosine || votes >= opt.VotesToMerge;
+                // An atom found only in the contexts must look different by every signal: one "same" vote merges it.
+                bool linked = cos >= opt.SameCosine || votes >= (FromCorpus(i) || FromCorpus(j) ? 1 : opt.VotesToMerge);
                 pairs.Add(new AtomPairEvidence(a, b, cos, npmi, label, corpus, votes, linked));
                 if (linked) parent[Find(i)] = Find(j);
             }
@@ -54,9 +75,19 @@ internal static class SenseGrouping
             .Select(ix => (ix, weight: ix.Sum(i => (double)plan.Weights[i])))
             .OrderByDescending(g => g.weight).ThenBy(g => plan.Atoms[g.ix[0]])
             .ToList();
-        var vectors = groups.Select(g => SenseVector(model, plan, g.ix)).ToList();
-        double total = groups.Sum(g => g.weight);
-        double ambiguity = Ambiguity(groups.Select(g => total > 0 ? g.weight / total : 0).ToArray(), vectors);
+        if (kept < m)
+        {
+            // A corpus atom that joined a group of the code's atoms is a facet of that sense, not a sense: left out.
+            var facets = groups.Where(g => g.ix.Any(i => !FromCorpus(i)) && g.ix.Any(FromCorpus)).SelectMany(g => g.ix.Where(FromCorpus)).ToArray();
+            foreach (int i in facets) notes.Add($"atom {plan.Atoms[i]} (from the corpus contexts) reads as part of a sense of the code; left out");
+            groups = groups.Select(g => g.ix.Any(i => !FromCorpus(i)) ? (ix: g.ix.Where(i => !FromCorpus(i)).ToArray(), g.weight) : g)
+                .Select(g => (g.ix, weight: g.ix.Sum(i => (double)plan.Weights[i])))
+                .OrderByDescending(g => g.ix.Any(i => !FromCorpus(i))).ThenByDescending(g => g.weight).ThenBy(g => plan.Atoms[g.ix[0]]).ToList();
+        }
+        var codeGroups = groups.Where(g => !FromCorpus(g.ix[0])).ToList();
+        var vectors = codeGroups.Select(g => SenseVector(model, plan, g.ix)).ToList();
+        double total = codeGroups.Sum(g => g.weight);
+        double ambiguity = Ambiguity(codeGroups.Select(g => total > 0 ? g.weight / total : 0).ToArray(), vectors);
         if (groupsOnly)
             return new TermSenses(plan.Query, groups.Count > 1 ? Verdict.Several : Verdict.Single, ambiguity, plan.Row, plan.Composed, count, [], pairs, plan.Dropped, notes, []);
 
@@ -64,17 +95,22 @@ internal static class SenseGrouping
         // (docs/methods-senses.md, "Peer rank"); otherwise its facets are reported as one sense.
         double? peerRank = applyPeerGate ? model.PeerRank(count, ambiguity) : null;
         bool demoted = false;
-        if (groups.Count > 1 && peerRank is double pr && pr < opt.SeveralPeerRank)
+        if (codeGroups.Count > 1 && peerRank is double pr && pr < opt.SeveralPeerRank)
         {
             demoted = true;
             notes.Add(string.Create(System.Globalization.CultureInfo.InvariantCulture,
-                $"its atoms form {groups.Count} groups, but it is more mixed than only {100 * pr:0}% of words of about its frequency (a split needs {100 * opt.SeveralPeerRank:0}%): reported as one sense"));
-            var all = Enumerable.Range(0, m).ToArray();
-            groups = [(all, all.Sum(i => (double)plan.Weights[i]))];
-            vectors = [SenseVector(model, plan, all)];
-            total = groups[0].weight;
+                $"its atoms form {codeGroups.Count} groups, but it is more mixed than only {100 * pr:0}% of words of about its frequency (a split needs {100 * opt.SeveralPeerRank:0}%): reported as one sense"));
+            var all = Enumerable.Range(0, kept).ToArray();
+            codeGroups = [(all, all.Sum(i => (double)plan.Weights[i]))];
         }
+        // Senses found only in the corpus follow the code's senses, heaviest first.
+        groups = [.. codeGroups, .. groups.Where(g => FromCorpus(g.ix[0]))];
+        vectors = groups.Select(g => SenseVector(model, plan, g.ix)).ToList();
+        total = groups.Sum(g => g.weight);
+        if (groups.Count > codeGroups.Count)
+            ambiguity = Ambiguity(groups.Select(g => total > 0 ? g.weight / total : 0).ToArray(), vectors);
         var component = new int[m];
+        Array.Fill(component, -1);
         for (int gi = 0; gi < groups.Count; gi++) foreach (int i in groups[gi].ix) component[i] = gi;
 
         var excluded = ExcludedRows(model, plan);
@@ -98,6 +134,7 @@ internal static class SenseGrouping
                 {
                     if (p.Linked || p.Votes < opt.VotesToMerge - 1 || p.Votes == 0) continue;
                     int ia = Array.IndexOf(plan.Atoms, p.AtomA), ib = Array.IndexOf(plan.Atoms, p.AtomB);
+                    if (component[ia] < 0 || component[ib] < 0) continue;
                     int other = component[ia] == gi ? component[ib] : component[ib] == gi ? component[ia] : -1;
                     if (other >= 0 && other != gi && gi > other)
                     {
@@ -111,7 +148,10 @@ internal static class SenseGrouping
                 groups[gi].weight, total > 0 ? groups[gi].weight / total : 0, vectors[gi],
                 labelLists[gi].Select(w => model.Vectors.Words[w]).ToArray(),
                 neighbourLists[gi].Select(w => model.Vectors.Words[w]).ToArray(),
-                cues, reasons.Count > 0, string.Join("; ", reasons)));
+                cues, reasons.Count > 0, string.Join("; ", reasons))
+            {
+                FromCorpus = FromCorpus(ix[0]),
+            });
         }
 
         Verdict verdict = senses.Count == 1 ? Verdict.Single

@@ -17,7 +17,15 @@ public sealed record TermPlan(
 /// <param name="Sums">For each atom of the plan, the sum of the context vectors assigned to it (dims floats).</param>
 /// <param name="Counts">For each atom of the plan, how many occurrences were assigned to it.</param>
 /// <param name="Mean">Mean context vector over all occurrences of all terms (the common component removed before comparing).</param>
-public sealed record TermCorpusEvidence(float[][] Sums, int[] Counts, float[] Mean);
+public sealed record TermCorpusEvidence(float[][] Sums, int[] Counts, float[] Mean)
+{
+    /// <summary>Atoms outside the term's kept atoms that many of its occurrence contexts point to (best atom of the
+    /// whole dictionary), candidates for a sense the vector does not carry.</summary>
+    public IReadOnlyList<CorpusAtom> CorpusAtoms { get; init; } = [];
+}
+
+/// <summary>An atom that <paramref name="Occurrences"/> contexts of a term point to, with the sum of those unit contexts.</summary>
+public sealed record CorpusAtom(int Atom, int Occurrences, float[] Sum);
 
 /// <summary>
 /// Everything the sense audit needs from a model, computed once: atom catalogue, atom co-usage, the vocabulary index,

@@ -35,6 +35,21 @@ public sealed record SenseOptions
     public int PeerWindow { get; init; } = 200;
     /// <summary>With fewer sampled words than this, there is no peer rank and no gate.</summary>
     public int MinPeers { get; init; } = 50;
+    /// <summary>With a corpus: an atom outside the term's kept atoms that is the best atom of the whole dictionary for at
+    /// least this share of the term's occurrence contexts becomes a candidate sense (our choice, set on the demo
+    /// scenario: a sense with a tenth of the main sense's frequency reaches 5–7% of the contexts, one with a fiftieth
+    /// about 2%; at 1.5% related-topic facets began to pass as senses). The peer-lift test and the grouping signals
+    /// then decide. 0 turns candidates off.</summary>
+    public double MinCorpusShare { get; init; } = 0.03;
+    /// <summary>... and for at least this many occurrences.</summary>
+    public int MinCorpusOccurrences { get; init; } = 10;
+    /// <summary>A candidate must be pointed to by the term's contexts at least this many times as often as by the
+    /// contexts of the term's main-sense words (our choice).</summary>
+    public double PeerLift { get; init; } = 2.0;
+    /// <summary>Contexts read per main-sense word for that comparison (the first ones in the corpus).</summary>
+    public int MaxPeerContexts { get; init; } = 2000;
+    /// <summary>At most this many corpus candidates per term (the most frequent).</summary>
+    public int MaxCorpusAtoms { get; init; } = 3;
     public int Neighbours { get; init; } = 10;
     public int Cues { get; init; } = 8;
     /// <summary>Context words taken on each side of an occurrence (our choice; Arora et al. 2018 use a comparable window).</summary>

@@ -75,6 +75,8 @@ public sealed record SenseInfo(
 {
     public List<SenseExample> Examples { get; } = [];
     public int Occurrences { get; set; }
+    /// <summary>The sense's atoms are not in the term's code: its occurrence contexts in the corpus point to them.</summary>
+    public bool FromCorpus { get; init; }
 }
 
 /// <summary>The audit of one term.</summary>
