@@ -115,7 +115,7 @@ public static class SenseAudit
             candidateCounts[t] = chosen.ToDictionary(kv => kv.Key, _ => 0);
         }
         if (candidates.Any(c => c is not null))
-            ConfirmCandidates(model, plans, corpus, finder, tagger, counts, candidates, candidateCounts, cancellation);
+            ConfirmCandidates(model, plans, corpus, finder, tagger, sums, counts, candidates, candidateCounts, cancellation);
         progress?.Report($"corpus: {candidates.Count(c => c is not null && c.Count > 0)} terms with a candidate sense found in the contexts");
 
         var results = new TermSenses[plans.Count];
@@ -179,9 +179,15 @@ public static class SenseAudit
     /// the unit contexts of each surviving candidate (for the corpus vote of the grouping).
     /// </summary>
     private static void ConfirmCandidates(SenseModel model, IReadOnlyList<TermPlan> plans, IReadOnlyList<TokenizedText> corpus,
-        TermFinder finder, SenseTagger tagger, int[][] counts, Dictionary<int, float[]>?[] candidates,
+        TermFinder finder, SenseTagger tagger, float[][][] sums, int[][] counts, Dictionary<int, float[]>?[] candidates,
         Dictionary<int, int>?[] candidateCounts, CancellationToken cancellation)
     {
+        // The contexts that point to a candidate also went to one of the kept atoms in pass 1; they are taken out of
+        // that atom's sum for each candidate that survives, so the corpus vote compares disjoint sets of contexts.
+        var lent = new Dictionary<int, (float[][] sums, int[] counts)>?[plans.Count];
+        for (int t = 0; t < plans.Count; t++)
+            if (candidates[t] is { } c)
+                lent[t] = c.Keys.ToDictionary(a => a, _ => (plans[t].Atoms.Select(_ => new float[model.Dimensions]).ToArray(), new int[plans[t].Atoms.Length]));
         var opt = model.Options;
         int d = model.Dimensions, k = model.AtomCount;
         // Peer words of each term with candidates, and the terms each peer row serves.
@@ -210,8 +216,20 @@ public static class SenseAudit
                 if (kind == 0) { var h = peerHist[id]; h[a] = h.GetValueOrDefault(a) + 1; }
                 else if (candidates[id]!.TryGetValue(a, out var sum))
                 {
-                    TensorPrimitives.Add(sum, block.AsSpan(r * d, d), sum);
+                    var ctx = block.AsSpan(r * d, d);
+                    TensorPrimitives.Add(sum, ctx, sum);
                     candidateCounts[id]![a]++;
+                    var atoms = plans[id].Atoms;
+                    int best = 0;
+                    float bestCos = float.NegativeInfinity;
+                    for (int i = 0; i < atoms.Length; i++)
+                    {
+                        float c = TensorPrimitives.Dot(ctx, model.Atom(atoms[i]));
+                        if (c > bestCos) { bestCos = c; best = i; }
+                    }
+                    var (ls, lc) = lent[id]![a];
+                    TensorPrimitives.Add(ls[best], ctx, ls[best]);
+                    lc[best]++;
                 }
             }
             inBlock = 0;
@@ -259,7 +277,16 @@ public static class SenseAudit
                     candidateCounts[t]!.Remove(a);
                 }
             }
-            if (candidates[t]!.Count == 0) { candidates[t] = null; candidateCounts[t] = null; }
+            if (candidates[t]!.Count == 0) { candidates[t] = null; candidateCounts[t] = null; continue; }
+            foreach (int a in candidates[t]!.Keys)
+            {
+                var (ls, lc) = lent[t]![a];
+                for (int i = 0; i < ls.Length; i++)
+                {
+                    TensorPrimitives.Subtract(sums[t][i], ls[i], sums[t][i]);
+                    counts[t][i] = Math.Max(0, counts[t][i] - lc[i]);
+                }
+            }
         }
     }
 

@@ -7,8 +7,9 @@ namespace SenseSplit.Tests.Cli;
 public class DemoCommandTests
 {
     /// <summary>The whole job on a small demo corpus. The bars come from the full-size run recorded in docs/demo.md
-    /// (3 M tokens: precision 1.00, recall 0.38, 33 of 43 planted senses found) and a 400 k-token run (same verdicts,
-    /// 34 of 43): the test asks for no false alarm above one, the four 1:1 terms at least, and most planted senses.</summary>
+    /// (3 M tokens: precision 1.00, recall 0.77, 40 of 43 planted senses found) and a 400 k-token run (precision 1.00,
+    /// recall 0.62, 37 of 43): the test asks for at most one false alarm in five flags, more than half of the planted
+    /// several-sense terms, and 80% of the planted senses.</summary>
     [Fact]
     public void Demo_SmallCorpus_ScorecardReachesBar()
     {
@@ -24,8 +25,8 @@ public class DemoCommandTests
         int found = root.GetProperty("senses_found").GetInt32();
         int planted = root.GetProperty("planted_senses").GetInt32();
         Assert.True(precision >= 0.8, $"precision {precision}");
-        Assert.True(recall >= 4.0 / 13, $"recall {recall}");
-        Assert.True(found >= planted * 0.7, $"{found} of {planted} planted senses found");
+        Assert.True(recall >= 7.0 / 13, $"recall {recall}");
+        Assert.True(found >= planted * 0.8, $"{found} of {planted} planted senses found");
         Assert.True(File.Exists(Path.Combine(outDir, "audit", "report.html")));
         Assert.True(File.Exists(Path.Combine(outDir, "truth.json")));
         Assert.Contains(root.GetProperty("merge_test_verdict").GetString(), new[] { "pass", "fail" });
