@@ -142,10 +142,11 @@ public static class MergeTestCommand
         private readonly Option<int> _seed = new("--seed") { HelpName = "N", Description = "Seed of the pair choice (and of nothing else).", DefaultValueFactory = _ => Defaults.Seed };
         private readonly Option<long> _minCount = new("--min-rare-count") { HelpName = "N", Description = "Least corpus count of the rarer word of a pair.", DefaultValueFactory = _ => Defaults.MinRareCount };
         private readonly Option<double> _maxRatio = new("--max-ratio") { HelpName = "R", Description = "Largest frequency ratio f1/f2 of a chosen pair.", DefaultValueFactory = _ => Defaults.MaxRatio };
+        private readonly Option<int> _skipFrequent = new("--skip-frequent") { HelpName = "N", Description = "The N most frequent words count as function words and are never paired (0 pairs them too). Tokens without a letter or with a digit are never paired either.", DefaultValueFactory = _ => Defaults.SkipMostFrequent };
 
         public void AddTo(Command command)
         {
-            foreach (var o in new Option[] { _pairs, _seed, _minCount, _maxRatio }) command.Options.Add(o);
+            foreach (var o in new Option[] { _pairs, _seed, _minCount, _maxRatio, _skipFrequent }) command.Options.Add(o);
         }
 
         public PairSelectionSettings Bind(ParseResult parse) => new()
@@ -154,6 +155,7 @@ public static class MergeTestCommand
             Seed = parse.GetValue(_seed),
             MinRareCount = parse.GetValue(_minCount),
             MaxRatio = parse.GetValue(_maxRatio),
+            SkipMostFrequent = parse.GetValue(_skipFrequent),
         };
     }
 

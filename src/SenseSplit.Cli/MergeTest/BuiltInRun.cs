@@ -73,10 +73,10 @@ internal static class BuiltInRun
             progress.Stage(s.PairsFile is null ? "choosing pairs" : "checking pairs");
             string vectorsPath = folder.FilePath("vectors", "vectors.txt");
             var pairs = MergeTestSteps.Choose(vectors, folder.Counts, s.Selection, vectorsPath, s.PairsFile, MergeTestSteps.Unmergeable(vectors.Words));
-            progress.EndStage($"{pairs.Pairs.Count.ToString(C)} pairs");
+            var run = MergeTestSteps.RunBase(s.Retrain ? "retrain" : "fold-in");
+            progress.EndStage(s.PairsFile is null ? MergeTestSteps.ChoiceLine(pairs, s.Selection, run) : $"{pairs.Pairs.Count.ToString(C)} pairs");
             cancellation.ThrowIfCancellationRequested();
 
-            var run = MergeTestSteps.RunBase(s.Retrain ? "retrain" : "fold-in");
             run["embedding"] = Path.GetFullPath(embeddingDir);
             run["corpus"] = corpus.Select(c => c.Name).ToArray();
             run["dimensions"] = vectors.Dimensions;

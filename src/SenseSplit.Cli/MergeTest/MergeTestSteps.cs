@@ -44,6 +44,19 @@ internal static class MergeTestSteps
         return set;
     }
 
+    /// <summary>What the pair choice left out, for the progress line, and the same in <paramref name="run"/>.</summary>
+    public static string ChoiceLine(ChosenPairs pairs, PairSelectionSettings settings, Dictionary<string, object?>? run)
+    {
+        var s = pairs.Selection;
+        if (run is not null)
+        {
+            run["skipped_function_words"] = s.SkippedFrequent;
+            run["skipped_not_plain_words"] = s.SkippedNotPlain;
+            run["most_frequent_pairable_count"] = s.MostFrequentPairable;
+        }
+        return $"{pairs.Pairs.Count.ToString(C)} pairs; skipped the {s.SkippedFrequent.ToString(C)} most frequent words (function words, --skip-frequent {settings.SkipMostFrequent.ToString(C)}) and {s.SkippedNotPlain.ToString(C)} tokens without letters or with digits; the most frequent pairable word occurs {s.MostFrequentPairable.ToString(C)} times";
+    }
+
     /// <summary>Chooses pairs with <see cref="PairSelector.Select"/>, or checks the pairs of a pairs file; names the
     /// pseudo-words (the file's, or w1⊕w2 made unique against the vocabulary).</summary>
     public static ChosenPairs Choose(WordVectors vectors, long[] counts, PairSelectionSettings settings, string vectorsPath,
@@ -55,7 +68,7 @@ internal static class MergeTestSteps
         {
             var selection = selector.Select(settings with { Excluded = unmergeable.ToHashSet(StringComparer.Ordinal) });
             if (selection.Pairs.Count == 0)
-                throw new UserFacingException($"{vectorsPath}: no pair of words could be chosen among {selection.EligibleWords.ToString(C)} words with count >= {settings.MinRareCount.ToString(C)} (lower --min-rare-count, or name pairs with --pairs-file)");
+                throw new UserFacingException($"{vectorsPath}: no pair of words could be chosen among {selection.EligibleWords.ToString(C)} words with count >= {settings.MinRareCount.ToString(C)} after skipping the {selection.SkippedFrequent.ToString(C)} most frequent words and {selection.SkippedNotPlain.ToString(C)} tokens without letters or with digits (lower --min-rare-count or --skip-frequent, or name pairs with --pairs-file)");
             var names = selection.Pairs.Select(p => PseudoWord.Choose(p.FrequentWord, p.RareWord, known.Contains)).ToArray();
             return new ChosenPairs(selection, names);
         }
@@ -240,6 +253,7 @@ internal static class MergeTestSteps
         if (s.Pairs < 1) Fail($"--pairs ({s.Pairs.ToString(C)}) must be at least 1");
         if (s.MinRareCount < 1) Fail($"--min-rare-count ({s.MinRareCount.ToString(C)}) must be at least 1");
         if (!(s.MaxRatio > 1) || !double.IsFinite(s.MaxRatio)) Fail($"--max-ratio ({s.MaxRatio.ToString(C)}) must be a finite number above 1");
+        if (s.SkipMostFrequent < 0) Fail($"--skip-frequent ({s.SkipMostFrequent.ToString(C)}) must not be negative (0 skips none)");
     }
 
     private static string Num(double x, string format) => double.IsFinite(x) ? x.ToString(format, C) : "n/a";

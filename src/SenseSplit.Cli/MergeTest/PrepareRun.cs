@@ -55,7 +55,7 @@ internal static class PrepareRun
 
             progress.Stage(s.PairsFile is null ? "choosing pairs" : "checking pairs");
             var pairs = MergeTestSteps.Choose(vectors, counts, s.Selection, s.Vectors, s.PairsFile, MergeTestSteps.Unmergeable(vectors.Words));
-            progress.EndStage($"{pairs.Pairs.Count.ToString(C)} pairs");
+            progress.EndStage(s.PairsFile is null ? MergeTestSteps.ChoiceLine(pairs, s.Selection, null) : $"{pairs.Pairs.Count.ToString(C)} pairs");
             foreach (var note in pairs.Selection.Notes) progress.Message($"note: {note}");
             cancellation.ThrowIfCancellationRequested();
 

@@ -76,6 +76,8 @@ public sealed record MergeTestParameters
     public long MinRareCount { get; init; }
     public double MaxAbsCosine { get; init; }
     public int Neighbours { get; init; }
+    public int SkipMostFrequent { get; init; }
+    public bool PlainWordsOnly { get; init; }
     public int SelectionSeed { get; init; }
     public int Resamples { get; init; }
     public int BootstrapSeed { get; init; }
@@ -222,7 +224,7 @@ public static class MergeTestReport
             Parameters = new MergeTestParameters
             {
                 Pairs = s.Pairs, Bins = s.Bins, MaxRatio = s.MaxRatio, MinRareCount = s.MinRareCount, MaxAbsCosine = s.MaxAbsCosine,
-                Neighbours = s.Neighbours, SelectionSeed = s.Seed,
+                Neighbours = s.Neighbours, SkipMostFrequent = s.SkipMostFrequent, PlainWordsOnly = s.PlainWordsOnly, SelectionSeed = s.Seed,
                 Resamples = laws.Settings.Resamples, BootstrapSeed = laws.Settings.Seed, Confidence = laws.Settings.Confidence,
                 WellAboveFactor = laws.Settings.WellAboveFactor,
                 MinMedianCosine = v.Thresholds.MinMedianCosine, HighRatio = v.Thresholds.HighRatio,
