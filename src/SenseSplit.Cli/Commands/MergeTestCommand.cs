@@ -163,14 +163,16 @@ public static class MergeTestCommand
     private sealed class ThresholdOptions
     {
         private static readonly VerdictThresholds Defaults = new();
-        private readonly Option<double> _minCosine = new("--min-cosine") { HelpName = "X", Description = "Pass needs the median cosine of a pseudo-word to span(v1, v2) at least this.", DefaultValueFactory = _ => Defaults.MinMedianCosine };
+        private readonly Option<double> _minCosine = new("--min-cosine") { HelpName = "X", Description = "Fold-in: pass needs the median cosine of a pseudo-word to span(v1, v2) at least this.", DefaultValueFactory = _ => Defaults.MinMedianCosine };
+        private readonly Option<double> _floorFactor = new("--floor-factor") { HelpName = "K", Description = "Re-embedded vectors (--retrain, score): pass needs the median cosine to span at least K times the noise floor, the median cosine of untouched words to their old vectors after alignment.", DefaultValueFactory = _ => Defaults.FloorFactor };
+        private readonly Option<double> _minFloor = new("--min-floor") { HelpName = "X", Description = "Re-embedded vectors: a noise floor below this fails the test for lack of evidence (the re-embedding is too unstable to judge).", DefaultValueFactory = _ => Defaults.MinNoiseFloor };
         private readonly Option<double> _highRatio = new("--high-ratio") { HelpName = "R", Description = "Pairs with f1/f2 at least this enter the weight criterion.", DefaultValueFactory = _ => Defaults.HighRatio };
         private readonly Option<double> _minExcess = new("--min-excess") { HelpName = "X", Description = "Pass needs the median of (β/α)/(1/r) over those pairs at least this.", DefaultValueFactory = _ => Defaults.MinExcessFactor };
         private readonly Option<int> _minPairs = new("--min-pairs") { HelpName = "N", Description = "Fewest pairs each median needs.", DefaultValueFactory = _ => Defaults.MinPairs };
 
         public void AddTo(Command command)
         {
-            foreach (var o in new Option[] { _minCosine, _highRatio, _minExcess, _minPairs }) command.Options.Add(o);
+            foreach (var o in new Option[] { _minCosine, _floorFactor, _minFloor, _highRatio, _minExcess, _minPairs }) command.Options.Add(o);
         }
 
         public VerdictThresholds Bind(ParseResult parse) => new()
@@ -179,6 +181,8 @@ public static class MergeTestCommand
             HighRatio = parse.GetValue(_highRatio),
             MinExcessFactor = parse.GetValue(_minExcess),
             MinPairs = parse.GetValue(_minPairs),
+            FloorFactor = parse.GetValue(_floorFactor),
+            MinNoiseFloor = parse.GetValue(_minFloor),
         };
     }
 }

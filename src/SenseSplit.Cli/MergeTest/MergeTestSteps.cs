@@ -180,7 +180,7 @@ internal static class MergeTestSteps
         run["alignment_reflection"] = a.Fit.IsReflection;
         run["alignment_median_cosine"] = double.IsFinite(a.MedianCosineShared) ? a.MedianCosineShared : null;
         if (a.MedianCosineShared < thresholds.MinMedianCosine)
-            notes.Add($"untouched words come back with a median cosine of only {a.MedianCosineShared.ToString("F3", C)} to their original vectors after alignment; the two embeddings differ this much even where nothing was merged, so a pseudo-word's cosine to span cannot be expected to be higher");
+            notes.Add($"untouched words come back with a median cosine of only {a.MedianCosineShared.ToString("F3", C)} to their original vectors after alignment; the two embeddings differ this much even where nothing was merged, so the cosine to span is judged against this noise floor ({thresholds.FloorFactor.ToString("G", C)} × floor), not against the absolute {thresholds.MinMedianCosine.ToString("G", C)}");
     }
 
     public static double Cosine(ReadOnlySpan<float> a, ReadOnlySpan<float> b)
@@ -204,10 +204,10 @@ internal static class MergeTestSteps
     /// prints the summary and the JSON path, and returns the exit code of the verdict.</summary>
     public static int Finish(CliContext context, ProgressDisplay progress, string outDir, IReadOnlyList<PairFit> fits,
         IReadOnlyList<string> pseudoWords, PairSelectionSettings selection, VerdictThresholds thresholds,
-        Dictionary<string, object?> run, IEnumerable<string> notes)
+        Dictionary<string, object?> run, IEnumerable<string> notes, double noiseFloor = double.NaN)
     {
         progress.Stage("fitting weight laws");
-        var outcome = MergeTestAnalysis.Analyse(fits, selection, null, thresholds, notes);
+        var outcome = MergeTestAnalysis.Analyse(fits, selection, null, thresholds, notes, noiseFloor);
         progress.EndStage($"{outcome.Laws.PairsUsed.ToString(C)} pairs with weights");
         progress.Stage("writing report");
         MergeTestReport.Write(outDir, outcome, run, pseudoWords);
@@ -219,12 +219,20 @@ internal static class MergeTestSteps
         {
             ("verdict", v.Label),
             ("pairs", $"{fits.Count.ToString(C)} ({laws.PairsUsed.ToString(C)} with weights)"),
-            ("median cosine to span", $"{Num(v.MedianCosineToSpan, "F3")} (pass at >= {thresholds.MinMedianCosine.ToString("G", C)})"),
+        };
+        if (v.RelativeToFloor)
+            rows.Add(("noise floor", $"{Num(v.NoiseFloor, "F3")} (median cosine of untouched words to their old vectors after alignment)"));
+        rows.AddRange(
+        [
+
+            ("median cosine to span", v.RelativeToFloor
+                ? $"{Num(v.MedianCosineToSpan, "F3")} (pass at >= {thresholds.FloorFactor.ToString("G", C)} × noise floor = {Num(v.RequiredCosine, "F3")})"
+                : $"{Num(v.MedianCosineToSpan, "F3")} (pass at >= {thresholds.MinMedianCosine.ToString("G", C)})"),
             ($"median r·β/α for r >= {thresholds.HighRatio.ToString("G", C)}", $"{Num(v.MedianExcessHighRatio, "G3")} over {v.PairsHighRatio.ToString(C)} pairs (pass at >= {thresholds.MinExcessFactor.ToString("G", C)})"),
             ("better law (BIC)", laws.BetterLaw is { } law ? WeightLaws.Name(law) : "none"),
             ("c (β/α = 1 − c·log10 r)", $"{Num(laws.C.Estimate, "G3")} [{Num(laws.C.Lower, "G3")}, {Num(laws.C.Upper, "G3")}]"),
             ("γ (β/α = A·r^−γ)", $"{Num(laws.Gamma.Estimate, "G3")} [{Num(laws.Gamma.Lower, "G3")}, {Num(laws.Gamma.Upper, "G3")}]"),
-        };
+        ]);
         foreach (var reason in v.Reasons) rows.Add(("reason", reason));
         rows.Add(("report", Path.GetFullPath(Path.Combine(outDir, MergeTestReport.SummaryFile))));
         foreach (var note in outcome.Notes.Take(5)) progress.Message($"note: {note}");
@@ -244,6 +252,8 @@ internal static class MergeTestSteps
         if (!(t.MinMedianCosine >= -1 && t.MinMedianCosine <= 1)) Fail($"--min-cosine ({t.MinMedianCosine.ToString(C)}) must lie in [-1, 1]");
         if (!(t.HighRatio >= 1) || !double.IsFinite(t.HighRatio)) Fail($"--high-ratio ({t.HighRatio.ToString(C)}) must be a finite number >= 1");
         if (!(t.MinExcessFactor > 0) || !double.IsFinite(t.MinExcessFactor)) Fail($"--min-excess ({t.MinExcessFactor.ToString(C)}) must be a positive number");
+        if (!(t.FloorFactor > 0) || !double.IsFinite(t.FloorFactor)) Fail($"--floor-factor ({t.FloorFactor.ToString(C)}) must be a positive number");
+        if (!(t.MinNoiseFloor >= -1 && t.MinNoiseFloor <= 1)) Fail($"--min-floor ({t.MinNoiseFloor.ToString(C)}) must lie in [-1, 1]");
         if (t.MinPairs < 1) Fail($"--min-pairs ({t.MinPairs.ToString(C)}) must be at least 1");
     }
 

@@ -21,7 +21,8 @@ internal sealed record ScoreSettings
 /// <summary>
 /// <c>merge-test score</c>: the merge test for embeddings trained elsewhere. Reads the original vectors and the vectors
 /// trained on the merged corpus, rotates the merged ones onto the original by orthogonal Procrustes on the untouched
-/// words, fits every pseudo-word as α·v1 + β·v2 and writes the report.
+/// words, fits every pseudo-word as α·v1 + β·v2 and writes the report. As for <c>--retrain</c>, the cosine criterion
+/// is judged against the noise floor of the two trainings (the untouched words' median cosine after the rotation).
 /// </summary>
 internal static class ScoreRun
 {
@@ -91,6 +92,6 @@ internal static class ScoreRun
         var notes = new List<string>(selection.Notes);
         MergeTestSteps.Describe(alignment, "merged onto original", run, notes, s.Thresholds);
         return MergeTestSteps.Finish(context, progress, s.Out, fits, pseudo, s.Selection with { Pairs = rows.Count },
-            s.Thresholds, run, notes);
+            s.Thresholds, run, notes, alignment.MedianCosineShared);
     }
 }
