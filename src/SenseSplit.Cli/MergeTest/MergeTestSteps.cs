@@ -229,6 +229,7 @@ internal static class MergeTestSteps
                 ? $"{Num(v.MedianCosineToSpan, "F3")} (pass at >= {thresholds.FloorFactor.ToString("G", C)} × noise floor = {Num(v.RequiredCosine, "F3")})"
                 : $"{Num(v.MedianCosineToSpan, "F3")} (pass at >= {thresholds.MinMedianCosine.ToString("G", C)})"),
             ($"median r·β/α for r >= {thresholds.HighRatio.ToString("G", C)}", $"{Num(v.MedianExcessHighRatio, "G3")} over {v.PairsHighRatio.ToString(C)} pairs (pass at >= {thresholds.MinExcessFactor.ToString("G", C)})"),
+            ($"share with β/α > {laws.Settings.WellAboveFactor.ToString("G", C)}/r", double.IsFinite(laws.ShareWellAbove) ? $"{(100 * laws.ShareWellAbove).ToString("F0", C)}% of pairs (median r·β/α over all pairs {Num(laws.MedianExcessFactor, "G3")})" : "n/a"),
             ("better law (BIC)", laws.BetterLaw is { } law ? WeightLaws.Name(law) : "none"),
             ("c (β/α = 1 − c·log10 r)", $"{Num(laws.C.Estimate, "G3")} [{Num(laws.C.Lower, "G3")}, {Num(laws.C.Upper, "G3")}]"),
             ("γ (β/α = A·r^−γ)", $"{Num(laws.Gamma.Estimate, "G3")} [{Num(laws.Gamma.Lower, "G3")}, {Num(laws.Gamma.Upper, "G3")}]"),

@@ -15,6 +15,28 @@ public sealed class MergeTestCommandTests : IDisposable
 
     private string P(string name) => _dir.File(name);
 
+    // ---------------------------------------------------------------- help
+
+    [Fact]
+    public void Help_NamesOutputsExitCodesAndEveryThreshold()
+    {
+        var (code, stdout, _) = CliRunner.Run("merge-test", "--help");
+        Assert.Equal(ExitCodes.Ok, code);
+        foreach (var part in new[] { "pairs.csv", "merge-test.json", "merge-test.svg", "exit code 0", "5 when it fails", "--retrain", "--pairs-file",
+                     "--skip-frequent", "--min-rare-count", "--max-ratio", "--min-cosine", "--floor-factor", "--min-floor", "--high-ratio", "--min-excess",
+                     "--min-pairs", "score", "prepare" })
+            Assert.Contains(part, stdout);
+        (code, stdout, _) = CliRunner.Run("merge-test", "score", "--help");
+        Assert.Equal(ExitCodes.Ok, code);
+        Assert.Contains("--floor-factor", stdout);
+        Assert.Contains("noise floor", stdout);
+        // score always has a noise floor, so the absolute cosine threshold would have no effect there.
+        Assert.DoesNotContain("--min-cosine", stdout);
+        (code, _, var stderr) = CliRunner.Run("merge-test", "score", "--original", "a", "--merged", "b", "--pairs", "c", "--counts", "d", "--out", "e", "--min-cosine", "0.5");
+        Assert.Equal(ExitCodes.Usage, code);
+        Assert.Contains("--min-cosine", stderr);
+    }
+
     // ---------------------------------------------------------------- score
 
     [Fact]
