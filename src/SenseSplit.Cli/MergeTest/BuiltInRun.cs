@@ -288,7 +288,7 @@ internal static class BuiltInRun
         if (fits.Count == 0) throw new UserFacingException("no pseudo-word made the re-embedding's vocabulary");
         run["fit_against"] = "stored vectors of w1 and w2";
         run["retrain_words"] = vocab.Count;
-        MergeTestSteps.Describe(alignment, "re-embedding onto original", run, notes, s.Thresholds);
+        MergeTestSteps.Describe(alignment, "re-embedding onto original", run);
         run["context_smoothing"] = settings.ContextSmoothing;
         run["neg"] = settings.Neg;
         run["eigen_weight"] = settings.EigenWeight;

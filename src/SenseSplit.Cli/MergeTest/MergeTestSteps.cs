@@ -170,8 +170,9 @@ internal static class MergeTestSteps
         return new Alignment(rotated, fit, shared.Count, floor);
     }
 
-    /// <summary>Records what an alignment found in <paramref name="run"/> and prints it.</summary>
-    public static void Describe(Alignment a, string what, Dictionary<string, object?> run, List<string> notes, VerdictThresholds thresholds)
+    /// <summary>Records what an alignment found in <paramref name="run"/>; its median cosine of untouched words is the
+    /// noise floor the verdict judges the cosine to span against (see <see cref="MergeVerdict.Decide"/>).</summary>
+    public static void Describe(Alignment a, string what, Dictionary<string, object?> run)
     {
         run["alignment"] = $"orthogonal procrustes, {what}";
         run["alignment_words"] = a.SharedWords;
@@ -179,8 +180,6 @@ internal static class MergeTestSteps
         run["alignment_residual_after"] = a.Fit.RelativeResidual;
         run["alignment_reflection"] = a.Fit.IsReflection;
         run["alignment_median_cosine"] = double.IsFinite(a.MedianCosineShared) ? a.MedianCosineShared : null;
-        if (a.MedianCosineShared < thresholds.MinMedianCosine)
-            notes.Add($"untouched words come back with a median cosine of only {a.MedianCosineShared.ToString("F3", C)} to their original vectors after alignment; the two embeddings differ this much even where nothing was merged, so the cosine to span is judged against this noise floor ({thresholds.FloorFactor.ToString("G", C)} × floor), not against the absolute {thresholds.MinMedianCosine.ToString("G", C)}");
     }
 
     public static double Cosine(ReadOnlySpan<float> a, ReadOnlySpan<float> b)

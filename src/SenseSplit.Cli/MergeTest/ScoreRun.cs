@@ -90,7 +90,7 @@ internal static class ScoreRun
         run["dimensions"] = original.Dimensions;
         run["vectors_normalised"] = false;
         var notes = new List<string>(selection.Notes);
-        MergeTestSteps.Describe(alignment, "merged onto original", run, notes, s.Thresholds);
+        MergeTestSteps.Describe(alignment, "merged onto original", run);
         return MergeTestSteps.Finish(context, progress, s.Out, fits, pseudo, s.Selection with { Pairs = rows.Count },
             s.Thresholds, run, notes, alignment.MedianCosineShared);
     }
