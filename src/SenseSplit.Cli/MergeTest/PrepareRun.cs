@@ -83,7 +83,7 @@ internal static class PrepareRun
             progress.Summary("merge test prepared", [
                 ("pairs", $"{pairs.Pairs.Count.ToString(C)} ({Path.GetFullPath(Path.Combine(s.Out, MergeTestReport.PairsFile))})"),
                 ("merged corpus", mergedPath),
-                ("next", $"train your embedding on {MergedCorpusFile} (split on white space), then: sensesplit merge-test score --original {s.Vectors} --merged MERGED_VECTORS --pairs {Path.Combine(s.Out, MergeTestReport.PairsFile)} --counts {s.Counts} --out RESULTS"),
+                ("next", $"train your embedding on {MergedCorpusFile} with a tool that splits on white space only (sensesplit embed would split the pseudo-words; for it use merge-test --retrain), then: sensesplit merge-test score --original {s.Vectors} --merged MERGED_VECTORS --pairs {Path.Combine(s.Out, MergeTestReport.PairsFile)} --counts {s.Counts} --out RESULTS"),
             ]);
             context.Out.WriteLine(mergedPath);
             return ExitCodes.Ok;

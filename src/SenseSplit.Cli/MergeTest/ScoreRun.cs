@@ -65,8 +65,15 @@ internal static class ScoreRun
         var selection = MergeTestSteps.FromUser(selector, rows, s.Pairs, s.Selection);
         var pseudo = MergeTestSteps.PseudoNames(selection, rows, s.Pairs, _ => false, choose: false);
         for (int i = 0; i < pseudo.Length; i++)
-            if (!mergedIndex.ContainsKey(pseudo[i]))
-                throw new UserFacingException($"{s.Merged}: has no vector for the pseudo-word '{Printable.Word(pseudo[i])}' of the pair on line {rows[i].Line.ToString(C)} of {s.Pairs} ({Printable.Word(rows[i].First)}, {Printable.Word(rows[i].Second)}); was it trained on the merged corpus?");
+        {
+            if (mergedIndex.ContainsKey(pseudo[i])) continue;
+            string where = $"{s.Merged}: has no vector for the pseudo-word '{Printable.Word(pseudo[i])}' of the pair on line {rows[i].Line.ToString(C)} of {s.Pairs} ({Printable.Word(rows[i].First)}, {Printable.Word(rows[i].Second)})";
+            // Both halves still there: the trainer cut the name at the marker, as a tokenizer that keeps only letters
+            // and digits does (sensesplit embed among them).
+            if (mergedIndex.ContainsKey(rows[i].First) && mergedIndex.ContainsKey(rows[i].Second))
+                throw new UserFacingException($"{where}, but it has both '{Printable.Word(rows[i].First)}' and '{Printable.Word(rows[i].Second)}': the trainer split the pseudo-words at '{PseudoWord.Marker}'. Train with a tool that splits on white space only; for an embedding made by sensesplit embed, use 'sensesplit merge-test --retrain'");
+            throw new UserFacingException($"{where}; was it trained on the merged corpus?");
+        }
         var pairs = new ChosenPairs(selection, pseudo);
         cancellation.ThrowIfCancellationRequested();
 

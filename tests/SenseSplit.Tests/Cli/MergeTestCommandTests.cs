@@ -147,7 +147,27 @@ public sealed class MergeTestCommandTests : IDisposable
         Assert.Equal(ExitCodes.BadInput, code);
         Assert.Contains($"{P("merged.txt")}: has no vector for the pseudo-word '{known[3].Pseudo}'", stderr);
         Assert.Contains("line 5", stderr);
+        Assert.Contains("was it trained on the merged corpus?", stderr);
         Assert.False(Directory.Exists(P("out")));
+    }
+
+    [Fact]
+    public void Score_PseudoWordSplitByTrainer_ErrorSaysSo()
+    {
+        // A trainer that keeps only letters and digits cuts "fa3⊕ra3" into "fa3" and "ra3": the merged file then has
+        // both halves and no pseudo-word, which the error must name instead of a vague "not trained on it".
+        var known = WriteKnownMerge(_dir.Path, seed: 6, pairs: 10, background: 50, dims: 8, r => 0.5);
+        var lines = File.ReadAllLines(P("merged.txt")).Skip(1).ToList();
+        int at = lines.FindIndex(l => l.StartsWith(known[3].Pseudo + " ", StringComparison.Ordinal));
+        string numbers = lines[at][(known[3].Pseudo.Length + 1)..];
+        lines[at] = $"{known[3].First} {numbers}";
+        lines.Add($"{known[3].Second} {numbers}");
+        File.WriteAllLines(P("merged.txt"), lines);
+        var (code, _, stderr) = CliRunner.Run("merge-test", "score", "--original", P("original.txt"), "--merged", P("merged.txt"),
+            "--pairs", P("pairs.csv"), "--counts", P("counts.tsv"), "--out", P("out"));
+        Assert.Equal(ExitCodes.BadInput, code);
+        Assert.Contains($"the trainer split the pseudo-words at '⊕'", stderr);
+        Assert.Contains("merge-test --retrain", stderr);
     }
 
     [Fact]
