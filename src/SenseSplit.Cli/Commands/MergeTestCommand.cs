@@ -20,7 +20,7 @@ public static class MergeTestCommand
     public static Command Create(CliContext context)
     {
         var command = new Command("merge-test",
-            "Check whether an embedding keeps two senses of a word apart: merge pairs of unrelated words into pseudo-words and see how much of the rarer word stays visible.");
+            "Check whether an embedding keeps two senses of a word apart: merge pairs of unrelated words into pseudo-words and see how much of the rarer word stays visible. Writes pairs.csv, merge-test.json and merge-test.svg; exit code 0 when the embedding passes, 5 when it fails, 3 on bad input.");
         var corpus = CorpusOption("Corpus files (UTF-8 or gzip), folders (*.txt, *.txt.gz) or '-' for standard input: the corpus the embedding was made from.");
         var output = new Option<string>("--out") { HelpName = "DIR", Description = "Folder for pairs.csv, merge-test.json and merge-test.svg (created if missing; these files are replaced)." };
         var embedding = new Option<string?>("--embedding") { HelpName = "DIR", Description = "Output folder of 'sensesplit embed' for this corpus. Without it the corpus is embedded first, with embed's defaults, into the embedding folder inside --out." };
@@ -57,7 +57,7 @@ public static class MergeTestCommand
 
     private static Command CreateScore(CliContext context)
     {
-        var command = new Command("score", "Judge an embedding trained elsewhere: the original vectors, the vectors trained on the merged corpus that 'merge-test prepare' wrote, and its pairs.csv.");
+        var command = new Command("score", "Judge an embedding trained elsewhere: the original vectors, the vectors trained on the merged corpus that 'merge-test prepare' wrote, and its pairs.csv. The cosine to span is judged against the noise floor of the two trainings. Exit code 0 on pass, 5 on fail.");
         var original = new Option<string>("--original") { HelpName = "FILE", Description = "Vectors trained on the original corpus (text, gzip or .npy with --original-words).", Required = true };
         var originalWords = new Option<string?>("--original-words") { HelpName = "FILE", Description = "Words file for .npy --original vectors." };
         var merged = new Option<string>("--merged") { HelpName = "FILE", Description = "Vectors trained on the merged corpus; they hold the pseudo-words named in pairs.csv.", Required = true };
@@ -65,7 +65,7 @@ public static class MergeTestCommand
         var pairs = new Option<string>("--pairs") { HelpName = "FILE", Description = "pairs.csv: columns w1, w2 and optionally pseudo (else w1⊕w2); other columns are ignored.", Required = true };
         var counts = new Option<string>("--counts") { HelpName = "FILE", Description = "Word counts of the original corpus: 'word<TAB>count' lines or CSV with a 'word,count' header.", Required = true };
         var output = new Option<string>("--out") { HelpName = "DIR", Description = "Folder for pairs.csv, merge-test.json and merge-test.svg (created if missing; these files are replaced).", Required = true };
-        var thresholds = new ThresholdOptions();
+        var thresholds = new ThresholdOptions(absoluteCosine: false);
         foreach (var o in new Option[] { original, originalWords, merged, mergedWords, pairs, counts, output }) command.Options.Add(o);
         thresholds.AddTo(command);
         command.SetAction(parse =>
@@ -142,10 +142,11 @@ public static class MergeTestCommand
         private readonly Option<int> _seed = new("--seed") { HelpName = "N", Description = "Seed of the pair choice (and of nothing else).", DefaultValueFactory = _ => Defaults.Seed };
         private readonly Option<long> _minCount = new("--min-rare-count") { HelpName = "N", Description = "Least corpus count of the rarer word of a pair.", DefaultValueFactory = _ => Defaults.MinRareCount };
         private readonly Option<double> _maxRatio = new("--max-ratio") { HelpName = "R", Description = "Largest frequency ratio f1/f2 of a chosen pair.", DefaultValueFactory = _ => Defaults.MaxRatio };
+        private readonly Option<int> _skipFrequent = new("--skip-frequent") { HelpName = "N", Description = "The N most frequent words count as function words and are never paired (0 pairs them too). Tokens without a letter or with a digit are never paired either.", DefaultValueFactory = _ => Defaults.SkipMostFrequent };
 
         public void AddTo(Command command)
         {
-            foreach (var o in new Option[] { _pairs, _seed, _minCount, _maxRatio }) command.Options.Add(o);
+            foreach (var o in new Option[] { _pairs, _seed, _minCount, _maxRatio, _skipFrequent }) command.Options.Add(o);
         }
 
         public PairSelectionSettings Bind(ParseResult parse) => new()
@@ -154,29 +155,36 @@ public static class MergeTestCommand
             Seed = parse.GetValue(_seed),
             MinRareCount = parse.GetValue(_minCount),
             MaxRatio = parse.GetValue(_maxRatio),
+            SkipMostFrequent = parse.GetValue(_skipFrequent),
         };
     }
 
-    /// <summary>Thresholds of the verdict (docs/methods-merge-test.md §6).</summary>
-    private sealed class ThresholdOptions
+    /// <summary>Thresholds of the verdict (docs/methods-merge-test.md §6). <c>score</c> always has a noise floor, so it
+    /// gets no <c>--min-cosine</c>.</summary>
+    private sealed class ThresholdOptions(bool absoluteCosine = true)
     {
         private static readonly VerdictThresholds Defaults = new();
-        private readonly Option<double> _minCosine = new("--min-cosine") { HelpName = "X", Description = "Pass needs the median cosine of a pseudo-word to span(v1, v2) at least this.", DefaultValueFactory = _ => Defaults.MinMedianCosine };
+        private readonly Option<double> _minCosine = new("--min-cosine") { HelpName = "X", Description = "Fold-in (the default path): pass needs the median cosine of a pseudo-word to span(v1, v2) at least this.", DefaultValueFactory = _ => Defaults.MinMedianCosine };
+        private readonly Option<double> _floorFactor = new("--floor-factor") { HelpName = "K", Description = "Re-embedded vectors (--retrain, score): pass needs the median cosine to span at least K times the noise floor, the median cosine of untouched words to their old vectors after alignment.", DefaultValueFactory = _ => Defaults.FloorFactor };
+        private readonly Option<double> _minFloor = new("--min-floor") { HelpName = "X", Description = "Re-embedded vectors: a noise floor below this fails the test for lack of evidence (the re-embedding is too unstable to judge).", DefaultValueFactory = _ => Defaults.MinNoiseFloor };
         private readonly Option<double> _highRatio = new("--high-ratio") { HelpName = "R", Description = "Pairs with f1/f2 at least this enter the weight criterion.", DefaultValueFactory = _ => Defaults.HighRatio };
         private readonly Option<double> _minExcess = new("--min-excess") { HelpName = "X", Description = "Pass needs the median of (β/α)/(1/r) over those pairs at least this.", DefaultValueFactory = _ => Defaults.MinExcessFactor };
         private readonly Option<int> _minPairs = new("--min-pairs") { HelpName = "N", Description = "Fewest pairs each median needs.", DefaultValueFactory = _ => Defaults.MinPairs };
 
         public void AddTo(Command command)
         {
-            foreach (var o in new Option[] { _minCosine, _highRatio, _minExcess, _minPairs }) command.Options.Add(o);
+            if (absoluteCosine) command.Options.Add(_minCosine);
+            foreach (var o in new Option[] { _floorFactor, _minFloor, _highRatio, _minExcess, _minPairs }) command.Options.Add(o);
         }
 
         public VerdictThresholds Bind(ParseResult parse) => new()
         {
-            MinMedianCosine = parse.GetValue(_minCosine),
+            MinMedianCosine = absoluteCosine ? parse.GetValue(_minCosine) : Defaults.MinMedianCosine,
             HighRatio = parse.GetValue(_highRatio),
             MinExcessFactor = parse.GetValue(_minExcess),
             MinPairs = parse.GetValue(_minPairs),
+            FloorFactor = parse.GetValue(_floorFactor),
+            MinNoiseFloor = parse.GetValue(_minFloor),
         };
     }
 }

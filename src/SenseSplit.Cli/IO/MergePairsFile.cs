@@ -46,13 +46,18 @@ public static class MergePairsFile
             int needed = Math.Max(c1, c2);
             while (csv.Read())
             {
-                int line = csv.Parser.RawRow;
+                int line = StartLine(csv.Parser.RawRow, csv.Parser.RawRecord);
                 if (csv.Parser.Count == 1 && string.IsNullOrWhiteSpace(csv.Parser[0])) continue;
                 if (csv.Parser.Count <= needed)
                     throw new UserFacingException($"{path}: line {line.ToString(CultureInfo.InvariantCulture)}: has {csv.Parser.Count.ToString(CultureInfo.InvariantCulture)} fields, expected at least {(needed + 1).ToString(CultureInfo.InvariantCulture)}");
                 string w1 = csv.GetField(c1) ?? "", w2 = csv.GetField(c2) ?? "";
                 if (w1.Length == 0 || w2.Length == 0)
                     throw new UserFacingException($"{path}: line {line.ToString(CultureInfo.InvariantCulture)}, column {(w1.Length == 0 ? c1 + 1 : c2 + 1).ToString(CultureInfo.InvariantCulture)}: the word is empty");
+                // No token of a corpus or a vector file holds white space; a quoted field with a line break in it is
+                // most often a quote left open.
+                foreach (var (w, col) in new[] { (w1, c1), (w2, c2) })
+                    if (w.Any(char.IsWhiteSpace))
+                        throw new UserFacingException($"{path}: line {line.ToString(CultureInfo.InvariantCulture)}, column {(col + 1).ToString(CultureInfo.InvariantCulture)}: '{Printable.Word(w)}' contains white space{(w.Contains('\n') ? " or a line break (a quote left open?)" : "")}; a word is a single token");
                 long? Count(int col)
                 {
                     if (col < 0 || col >= csv.Parser.Count) return null;
@@ -72,6 +77,18 @@ public static class MergePairsFile
         }
         if (rows.Count == 0) throw new UserFacingException($"{path}: has a header but no pairs");
         return rows;
+    }
+
+    /// <summary>
+    /// The line a record starts on. CsvHelper's raw row is the line the record ends on, and a quoted field may hold
+    /// line breaks: subtract the breaks inside the record, not counting the one that ends it (present when the quotes
+    /// balance; an unclosed quote runs to the end of the file and swallows the last break).
+    /// </summary>
+    internal static int StartLine(int endLine, string rawRecord)
+    {
+        int breaks = rawRecord.Count(ch => ch == '\n');
+        if (rawRecord.EndsWith('\n') && rawRecord.Count(ch => ch == '"') % 2 == 0) breaks--;
+        return endLine - Math.Max(0, breaks);
     }
 
     /// <summary>Writes <c>w1, w2, f1, f2, r, pseudo</c> (r in round-trip form), atomically.</summary>

@@ -73,10 +73,10 @@ internal static class BuiltInRun
             progress.Stage(s.PairsFile is null ? "choosing pairs" : "checking pairs");
             string vectorsPath = folder.FilePath("vectors", "vectors.txt");
             var pairs = MergeTestSteps.Choose(vectors, folder.Counts, s.Selection, vectorsPath, s.PairsFile, MergeTestSteps.Unmergeable(vectors.Words));
-            progress.EndStage($"{pairs.Pairs.Count.ToString(C)} pairs");
+            var run = MergeTestSteps.RunBase(s.Retrain ? "retrain" : "fold-in");
+            progress.EndStage(s.PairsFile is null ? MergeTestSteps.ChoiceLine(pairs, s.Selection, run) : $"{pairs.Pairs.Count.ToString(C)} pairs");
             cancellation.ThrowIfCancellationRequested();
 
-            var run = MergeTestSteps.RunBase(s.Retrain ? "retrain" : "fold-in");
             run["embedding"] = Path.GetFullPath(embeddingDir);
             run["corpus"] = corpus.Select(c => c.Name).ToArray();
             run["dimensions"] = vectors.Dimensions;
@@ -84,11 +84,12 @@ internal static class BuiltInRun
             var notes = new List<string>(pairs.Selection.Notes);
             List<PairFit> fits;
             string[] pseudo;
+            double floor = double.NaN; // fold-in changes no other word: no noise floor, the absolute cosine rule applies
             if (s.Retrain)
-                (fits, pseudo) = Retrain(folder, corpus, pairs, s, temp, manifestPath, run, notes, progress, context.Err, cancellation);
+                (fits, pseudo, floor) = Retrain(folder, corpus, pairs, s, temp, manifestPath, run, notes, progress, context.Err, cancellation);
             else
                 (fits, pseudo) = FoldInPairs(folder, corpus, pairs, manifestPath, run, notes, progress, context.Err, cancellation);
-            return MergeTestSteps.Finish(context, progress, s.Out, fits, pseudo, s.Selection with { Pairs = pairs.Pairs.Count }, s.Thresholds, run, notes);
+            return MergeTestSteps.Finish(context, progress, s.Out, fits, pseudo, s.Selection with { Pairs = pairs.Pairs.Count }, s.Thresholds, run, notes, floor);
         }
         finally
         {
@@ -206,9 +207,10 @@ internal static class BuiltInRun
     /// Full re-embedding of the merged corpus: the embed pipeline (vocabulary pass, co-occurrence counting, PPMI,
     /// randomized SVD, U·Σ^p) with the embedding's settings on the token stream in which w1 and w2 of every pair are
     /// replaced by the pseudo-word; then orthogonal Procrustes onto the original vectors on the untouched shared words,
-    /// and the fit of each rotated pseudo-word against the stored v1 and v2.
+    /// and the fit of each rotated pseudo-word against the stored v1 and v2. Also returns the noise floor, the median
+    /// cosine of the untouched words to their stored vectors after the rotation, which the verdict judges against.
     /// </summary>
-    private static (List<PairFit>, string[]) Retrain(EmbedFolder folder, List<CorpusInput> corpus, ChosenPairs pairs, BuiltInSettings s,
+    private static (List<PairFit>, string[], double NoiseFloor) Retrain(EmbedFolder folder, List<CorpusInput> corpus, ChosenPairs pairs, BuiltInSettings s,
         string temp, string manifestPath, Dictionary<string, object?> run, List<string> notes, ProgressDisplay progress, TextWriter err,
         CancellationToken cancellation)
     {
@@ -286,13 +288,13 @@ internal static class BuiltInRun
         if (fits.Count == 0) throw new UserFacingException("no pseudo-word made the re-embedding's vocabulary");
         run["fit_against"] = "stored vectors of w1 and w2";
         run["retrain_words"] = vocab.Count;
-        MergeTestSteps.Describe(alignment, "re-embedding onto original", run, notes, s.Thresholds);
+        MergeTestSteps.Describe(alignment, "re-embedding onto original", run);
         run["context_smoothing"] = settings.ContextSmoothing;
         run["neg"] = settings.Neg;
         run["eigen_weight"] = settings.EigenWeight;
         run["window"] = settings.Window;
         run["svd_seed"] = settings.Seed;
-        return (fits, pseudo.ToArray());
+        return (fits, pseudo.ToArray(), alignment.MedianCosineShared);
     }
 
     private static string VectorsPath(EmbedFolder folder) => folder.FilePath("vectors", "vectors.txt");

@@ -44,6 +44,19 @@ internal static class MergeTestSteps
         return set;
     }
 
+    /// <summary>What the pair choice left out, for the progress line, and the same in <paramref name="run"/>.</summary>
+    public static string ChoiceLine(ChosenPairs pairs, PairSelectionSettings settings, Dictionary<string, object?>? run)
+    {
+        var s = pairs.Selection;
+        if (run is not null)
+        {
+            run["skipped_function_words"] = s.SkippedFrequent;
+            run["skipped_not_plain_words"] = s.SkippedNotPlain;
+            run["most_frequent_pairable_count"] = s.MostFrequentPairable;
+        }
+        return $"{pairs.Pairs.Count.ToString(C)} pairs; skipped the {s.SkippedFrequent.ToString(C)} most frequent words (function words, --skip-frequent {settings.SkipMostFrequent.ToString(C)}) and {s.SkippedNotPlain.ToString(C)} tokens without letters or with digits; the most frequent pairable word occurs {s.MostFrequentPairable.ToString(C)} times";
+    }
+
     /// <summary>Chooses pairs with <see cref="PairSelector.Select"/>, or checks the pairs of a pairs file; names the
     /// pseudo-words (the file's, or w1⊕w2 made unique against the vocabulary).</summary>
     public static ChosenPairs Choose(WordVectors vectors, long[] counts, PairSelectionSettings settings, string vectorsPath,
@@ -55,7 +68,7 @@ internal static class MergeTestSteps
         {
             var selection = selector.Select(settings with { Excluded = unmergeable.ToHashSet(StringComparer.Ordinal) });
             if (selection.Pairs.Count == 0)
-                throw new UserFacingException($"{vectorsPath}: no pair of words could be chosen among {selection.EligibleWords.ToString(C)} words with count >= {settings.MinRareCount.ToString(C)} (lower --min-rare-count, or name pairs with --pairs-file)");
+                throw new UserFacingException($"{vectorsPath}: no pair of words could be chosen among {selection.EligibleWords.ToString(C)} words with count >= {settings.MinRareCount.ToString(C)} after skipping the {selection.SkippedFrequent.ToString(C)} most frequent words and {selection.SkippedNotPlain.ToString(C)} tokens without letters or with digits (lower --min-rare-count or --skip-frequent, or name pairs with --pairs-file)");
             var names = selection.Pairs.Select(p => PseudoWord.Choose(p.FrequentWord, p.RareWord, known.Contains)).ToArray();
             return new ChosenPairs(selection, names);
         }
@@ -157,8 +170,9 @@ internal static class MergeTestSteps
         return new Alignment(rotated, fit, shared.Count, floor);
     }
 
-    /// <summary>Records what an alignment found in <paramref name="run"/> and prints it.</summary>
-    public static void Describe(Alignment a, string what, Dictionary<string, object?> run, List<string> notes, VerdictThresholds thresholds)
+    /// <summary>Records what an alignment found in <paramref name="run"/>; its median cosine of untouched words is the
+    /// noise floor the verdict judges the cosine to span against (see <see cref="MergeVerdict.Decide"/>).</summary>
+    public static void Describe(Alignment a, string what, Dictionary<string, object?> run)
     {
         run["alignment"] = $"orthogonal procrustes, {what}";
         run["alignment_words"] = a.SharedWords;
@@ -166,8 +180,6 @@ internal static class MergeTestSteps
         run["alignment_residual_after"] = a.Fit.RelativeResidual;
         run["alignment_reflection"] = a.Fit.IsReflection;
         run["alignment_median_cosine"] = double.IsFinite(a.MedianCosineShared) ? a.MedianCosineShared : null;
-        if (a.MedianCosineShared < thresholds.MinMedianCosine)
-            notes.Add($"untouched words come back with a median cosine of only {a.MedianCosineShared.ToString("F3", C)} to their original vectors after alignment; the two embeddings differ this much even where nothing was merged, so a pseudo-word's cosine to span cannot be expected to be higher");
     }
 
     public static double Cosine(ReadOnlySpan<float> a, ReadOnlySpan<float> b)
@@ -191,10 +203,10 @@ internal static class MergeTestSteps
     /// prints the summary and the JSON path, and returns the exit code of the verdict.</summary>
     public static int Finish(CliContext context, ProgressDisplay progress, string outDir, IReadOnlyList<PairFit> fits,
         IReadOnlyList<string> pseudoWords, PairSelectionSettings selection, VerdictThresholds thresholds,
-        Dictionary<string, object?> run, IEnumerable<string> notes)
+        Dictionary<string, object?> run, IEnumerable<string> notes, double noiseFloor = double.NaN)
     {
         progress.Stage("fitting weight laws");
-        var outcome = MergeTestAnalysis.Analyse(fits, selection, null, thresholds, notes);
+        var outcome = MergeTestAnalysis.Analyse(fits, selection, null, thresholds, notes, noiseFloor);
         progress.EndStage($"{outcome.Laws.PairsUsed.ToString(C)} pairs with weights");
         progress.Stage("writing report");
         MergeTestReport.Write(outDir, outcome, run, pseudoWords);
@@ -206,12 +218,21 @@ internal static class MergeTestSteps
         {
             ("verdict", v.Label),
             ("pairs", $"{fits.Count.ToString(C)} ({laws.PairsUsed.ToString(C)} with weights)"),
-            ("median cosine to span", $"{Num(v.MedianCosineToSpan, "F3")} (pass at >= {thresholds.MinMedianCosine.ToString("G", C)})"),
+        };
+        if (v.RelativeToFloor)
+            rows.Add(("noise floor", $"{Num(v.NoiseFloor, "F3")} (median cosine of untouched words to their old vectors after alignment)"));
+        rows.AddRange(
+        [
+
+            ("median cosine to span", v.RelativeToFloor
+                ? $"{Num(v.MedianCosineToSpan, "F3")} (pass at >= {thresholds.FloorFactor.ToString("G", C)} × noise floor = {Num(v.RequiredCosine, "F3")})"
+                : $"{Num(v.MedianCosineToSpan, "F3")} (pass at >= {thresholds.MinMedianCosine.ToString("G", C)})"),
             ($"median r·β/α for r >= {thresholds.HighRatio.ToString("G", C)}", $"{Num(v.MedianExcessHighRatio, "G3")} over {v.PairsHighRatio.ToString(C)} pairs (pass at >= {thresholds.MinExcessFactor.ToString("G", C)})"),
+            ($"share with β/α > {laws.Settings.WellAboveFactor.ToString("G", C)}/r", double.IsFinite(laws.ShareWellAbove) ? $"{(100 * laws.ShareWellAbove).ToString("F0", C)}% of pairs (median r·β/α over all pairs {Num(laws.MedianExcessFactor, "G3")})" : "n/a"),
             ("better law (BIC)", laws.BetterLaw is { } law ? WeightLaws.Name(law) : "none"),
             ("c (β/α = 1 − c·log10 r)", $"{Num(laws.C.Estimate, "G3")} [{Num(laws.C.Lower, "G3")}, {Num(laws.C.Upper, "G3")}]"),
             ("γ (β/α = A·r^−γ)", $"{Num(laws.Gamma.Estimate, "G3")} [{Num(laws.Gamma.Lower, "G3")}, {Num(laws.Gamma.Upper, "G3")}]"),
-        };
+        ]);
         foreach (var reason in v.Reasons) rows.Add(("reason", reason));
         rows.Add(("report", Path.GetFullPath(Path.Combine(outDir, MergeTestReport.SummaryFile))));
         foreach (var note in outcome.Notes.Take(5)) progress.Message($"note: {note}");
@@ -231,6 +252,8 @@ internal static class MergeTestSteps
         if (!(t.MinMedianCosine >= -1 && t.MinMedianCosine <= 1)) Fail($"--min-cosine ({t.MinMedianCosine.ToString(C)}) must lie in [-1, 1]");
         if (!(t.HighRatio >= 1) || !double.IsFinite(t.HighRatio)) Fail($"--high-ratio ({t.HighRatio.ToString(C)}) must be a finite number >= 1");
         if (!(t.MinExcessFactor > 0) || !double.IsFinite(t.MinExcessFactor)) Fail($"--min-excess ({t.MinExcessFactor.ToString(C)}) must be a positive number");
+        if (!(t.FloorFactor > 0) || !double.IsFinite(t.FloorFactor)) Fail($"--floor-factor ({t.FloorFactor.ToString(C)}) must be a positive number");
+        if (!(t.MinNoiseFloor >= -1 && t.MinNoiseFloor <= 1)) Fail($"--min-floor ({t.MinNoiseFloor.ToString(C)}) must lie in [-1, 1]");
         if (t.MinPairs < 1) Fail($"--min-pairs ({t.MinPairs.ToString(C)}) must be at least 1");
     }
 
@@ -240,6 +263,7 @@ internal static class MergeTestSteps
         if (s.Pairs < 1) Fail($"--pairs ({s.Pairs.ToString(C)}) must be at least 1");
         if (s.MinRareCount < 1) Fail($"--min-rare-count ({s.MinRareCount.ToString(C)}) must be at least 1");
         if (!(s.MaxRatio > 1) || !double.IsFinite(s.MaxRatio)) Fail($"--max-ratio ({s.MaxRatio.ToString(C)}) must be a finite number above 1");
+        if (s.SkipMostFrequent < 0) Fail($"--skip-frequent ({s.SkipMostFrequent.ToString(C)}) must not be negative (0 skips none)");
     }
 
     private static string Num(double x, string format) => double.IsFinite(x) ? x.ToString(format, C) : "n/a";

@@ -55,7 +55,7 @@ internal static class PrepareRun
 
             progress.Stage(s.PairsFile is null ? "choosing pairs" : "checking pairs");
             var pairs = MergeTestSteps.Choose(vectors, counts, s.Selection, s.Vectors, s.PairsFile, MergeTestSteps.Unmergeable(vectors.Words));
-            progress.EndStage($"{pairs.Pairs.Count.ToString(C)} pairs");
+            progress.EndStage(s.PairsFile is null ? MergeTestSteps.ChoiceLine(pairs, s.Selection, null) : $"{pairs.Pairs.Count.ToString(C)} pairs");
             foreach (var note in pairs.Selection.Notes) progress.Message($"note: {note}");
             cancellation.ThrowIfCancellationRequested();
 
@@ -83,7 +83,7 @@ internal static class PrepareRun
             progress.Summary("merge test prepared", [
                 ("pairs", $"{pairs.Pairs.Count.ToString(C)} ({Path.GetFullPath(Path.Combine(s.Out, MergeTestReport.PairsFile))})"),
                 ("merged corpus", mergedPath),
-                ("next", $"train your embedding on {MergedCorpusFile} (split on white space), then: sensesplit merge-test score --original {s.Vectors} --merged MERGED_VECTORS --pairs {Path.Combine(s.Out, MergeTestReport.PairsFile)} --counts {s.Counts} --out RESULTS"),
+                ("next", $"train your embedding on {MergedCorpusFile} with a tool that splits on white space only (sensesplit embed would split the pseudo-words; for it use merge-test --retrain), then: sensesplit merge-test score --original {s.Vectors} --merged MERGED_VECTORS --pairs {Path.Combine(s.Out, MergeTestReport.PairsFile)} --counts {s.Counts} --out RESULTS"),
             ]);
             context.Out.WriteLine(mergedPath);
             return ExitCodes.Ok;

@@ -21,7 +21,8 @@ internal sealed record ScoreSettings
 /// <summary>
 /// <c>merge-test score</c>: the merge test for embeddings trained elsewhere. Reads the original vectors and the vectors
 /// trained on the merged corpus, rotates the merged ones onto the original by orthogonal Procrustes on the untouched
-/// words, fits every pseudo-word as α·v1 + β·v2 and writes the report.
+/// words, fits every pseudo-word as α·v1 + β·v2 and writes the report. As for <c>--retrain</c>, the cosine criterion
+/// is judged against the noise floor of the two trainings (the untouched words' median cosine after the rotation).
 /// </summary>
 internal static class ScoreRun
 {
@@ -64,8 +65,15 @@ internal static class ScoreRun
         var selection = MergeTestSteps.FromUser(selector, rows, s.Pairs, s.Selection);
         var pseudo = MergeTestSteps.PseudoNames(selection, rows, s.Pairs, _ => false, choose: false);
         for (int i = 0; i < pseudo.Length; i++)
-            if (!mergedIndex.ContainsKey(pseudo[i]))
-                throw new UserFacingException($"{s.Merged}: has no vector for the pseudo-word '{Printable.Word(pseudo[i])}' of the pair on line {rows[i].Line.ToString(C)} of {s.Pairs} ({Printable.Word(rows[i].First)}, {Printable.Word(rows[i].Second)}); was it trained on the merged corpus?");
+        {
+            if (mergedIndex.ContainsKey(pseudo[i])) continue;
+            string where = $"{s.Merged}: has no vector for the pseudo-word '{Printable.Word(pseudo[i])}' of the pair on line {rows[i].Line.ToString(C)} of {s.Pairs} ({Printable.Word(rows[i].First)}, {Printable.Word(rows[i].Second)})";
+            // Both halves still there: the trainer cut the name at the marker, as a tokenizer that keeps only letters
+            // and digits does (sensesplit embed among them).
+            if (mergedIndex.ContainsKey(rows[i].First) && mergedIndex.ContainsKey(rows[i].Second))
+                throw new UserFacingException($"{where}, but it has both '{Printable.Word(rows[i].First)}' and '{Printable.Word(rows[i].Second)}': the trainer split the pseudo-words at '{PseudoWord.Marker}'. Train with a tool that splits on white space only; for an embedding made by sensesplit embed, use 'sensesplit merge-test --retrain'");
+            throw new UserFacingException($"{where}; was it trained on the merged corpus?");
+        }
         var pairs = new ChosenPairs(selection, pseudo);
         cancellation.ThrowIfCancellationRequested();
 
@@ -89,8 +97,8 @@ internal static class ScoreRun
         run["dimensions"] = original.Dimensions;
         run["vectors_normalised"] = false;
         var notes = new List<string>(selection.Notes);
-        MergeTestSteps.Describe(alignment, "merged onto original", run, notes, s.Thresholds);
+        MergeTestSteps.Describe(alignment, "merged onto original", run);
         return MergeTestSteps.Finish(context, progress, s.Out, fits, pseudo, s.Selection with { Pairs = rows.Count },
-            s.Thresholds, run, notes);
+            s.Thresholds, run, notes, alignment.MedianCosineShared);
     }
 }

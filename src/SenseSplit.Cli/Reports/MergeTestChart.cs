@@ -117,12 +117,12 @@ public static class MergeTestChart
         if (nonPositive > 0)
             root.Add(Text(Left, Height - 14, $"{nonPositive} pair(s) with β/α ≤ 0 are marked as ticks below the axis", anchor: "start", size: 11));
 
-        root.Add(Legend(laws, Left + plotW + 18, Top + 4));
+        root.Add(Legend(laws, outcome.Verdict, Left + plotW + 18, Top + 4));
         string markup = root.ToString(SaveOptions.None);
         return standalone ? "<?xml version=\"1.0\" encoding=\"utf-8\"?>\n" + markup + "\n" : markup;
     }
 
-    private static XElement Legend(WeightLawsResult laws, double x, double y)
+    private static XElement Legend(WeightLawsResult laws, MergeVerdictResult verdict, double x, double y)
     {
         var g = new XElement(Svg + "g");
         var rows = new List<(Func<double, double, XElement> symbol, string label)>
@@ -155,6 +155,11 @@ public static class MergeTestChart
             g.Add(Text(x, rowY, $"γ 95%: [{G(laws.Gamma.Lower)}, {G(laws.Gamma.Upper)}]", anchor: "start", size: 11)); rowY += 16;
         }
         g.Add(Text(x, rowY, $"median cos to span: {G(laws.MedianCosineToSpan)}", anchor: "start", size: 11));
+        if (verdict.RelativeToFloor)
+        {
+            rowY += 16;
+            g.Add(Text(x, rowY, $"noise floor (untouched words): {G(verdict.NoiseFloor)}", anchor: "start", size: 11));
+        }
         return g;
     }
 

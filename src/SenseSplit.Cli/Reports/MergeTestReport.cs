@@ -17,6 +17,13 @@ public sealed record MergeTestSummary
     public IReadOnlyList<string> VerdictReasons { get; init; } = [];
     public double? MedianCosineToSpan { get; init; }
     public int PairsWithCosine { get; init; }
+    /// <summary>"absolute" (fold-in: median cosine to span ≥ min_median_cosine) or "relative to noise floor"
+    /// (re-embedded vectors: ≥ floor_factor × noise_floor_cosine).</summary>
+    public string CosineRule { get; init; } = "absolute";
+    /// <summary>Median cosine of the untouched words to their old vectors after alignment; null for fold-in.</summary>
+    public double? NoiseFloorCosine { get; init; }
+    /// <summary>The least median cosine to span that passes under <see cref="CosineRule"/>.</summary>
+    public double? RequiredCosineToSpan { get; init; }
     public double? MedianExcessFactorHighRatio { get; init; }
     public int PairsHighRatio { get; init; }
     public string? BetterLaw { get; init; }
@@ -76,6 +83,8 @@ public sealed record MergeTestParameters
     public long MinRareCount { get; init; }
     public double MaxAbsCosine { get; init; }
     public int Neighbours { get; init; }
+    public int SkipMostFrequent { get; init; }
+    public bool PlainWordsOnly { get; init; }
     public int SelectionSeed { get; init; }
     public int Resamples { get; init; }
     public int BootstrapSeed { get; init; }
@@ -85,6 +94,8 @@ public sealed record MergeTestParameters
     public double HighRatio { get; init; }
     public double MinExcessFactor { get; init; }
     public int MinPairs { get; init; }
+    public double FloorFactor { get; init; }
+    public double MinNoiseFloor { get; init; }
     public IReadOnlyDictionary<string, object?> Run { get; init; } = new Dictionary<string, object?>();
 }
 
@@ -200,6 +211,9 @@ public static class MergeTestReport
             VerdictReasons = v.Reasons,
             MedianCosineToSpan = Finite(v.MedianCosineToSpan),
             PairsWithCosine = v.PairsWithCosine,
+            CosineRule = v.RelativeToFloor ? "relative to noise floor" : "absolute",
+            NoiseFloorCosine = Finite(v.NoiseFloor),
+            RequiredCosineToSpan = Finite(v.RequiredCosine),
             MedianExcessFactorHighRatio = Finite(v.MedianExcessHighRatio),
             PairsHighRatio = v.PairsHighRatio,
             BetterLaw = laws.BetterLaw is { } law ? WeightLaws.Name(law) : null,
@@ -222,11 +236,12 @@ public static class MergeTestReport
             Parameters = new MergeTestParameters
             {
                 Pairs = s.Pairs, Bins = s.Bins, MaxRatio = s.MaxRatio, MinRareCount = s.MinRareCount, MaxAbsCosine = s.MaxAbsCosine,
-                Neighbours = s.Neighbours, SelectionSeed = s.Seed,
+                Neighbours = s.Neighbours, SkipMostFrequent = s.SkipMostFrequent, PlainWordsOnly = s.PlainWordsOnly, SelectionSeed = s.Seed,
                 Resamples = laws.Settings.Resamples, BootstrapSeed = laws.Settings.Seed, Confidence = laws.Settings.Confidence,
                 WellAboveFactor = laws.Settings.WellAboveFactor,
                 MinMedianCosine = v.Thresholds.MinMedianCosine, HighRatio = v.Thresholds.HighRatio,
                 MinExcessFactor = v.Thresholds.MinExcessFactor, MinPairs = v.Thresholds.MinPairs,
+                FloorFactor = v.Thresholds.FloorFactor, MinNoiseFloor = v.Thresholds.MinNoiseFloor,
                 Run = run ?? new Dictionary<string, object?>(),
             },
             Notes = outcome.Notes,

@@ -15,6 +15,28 @@ public sealed class MergeTestCommandTests : IDisposable
 
     private string P(string name) => _dir.File(name);
 
+    // ---------------------------------------------------------------- help
+
+    [Fact]
+    public void Help_NamesOutputsExitCodesAndEveryThreshold()
+    {
+        var (code, stdout, _) = CliRunner.Run("merge-test", "--help");
+        Assert.Equal(ExitCodes.Ok, code);
+        foreach (var part in new[] { "pairs.csv", "merge-test.json", "merge-test.svg", "exit code 0", "5 when it fails", "--retrain", "--pairs-file",
+                     "--skip-frequent", "--min-rare-count", "--max-ratio", "--min-cosine", "--floor-factor", "--min-floor", "--high-ratio", "--min-excess",
+                     "--min-pairs", "score", "prepare" })
+            Assert.Contains(part, stdout);
+        (code, stdout, _) = CliRunner.Run("merge-test", "score", "--help");
+        Assert.Equal(ExitCodes.Ok, code);
+        Assert.Contains("--floor-factor", stdout);
+        Assert.Contains("noise floor", stdout);
+        // score always has a noise floor, so the absolute cosine threshold would have no effect there.
+        Assert.DoesNotContain("--min-cosine", stdout);
+        (code, _, var stderr) = CliRunner.Run("merge-test", "score", "--original", "a", "--merged", "b", "--pairs", "c", "--counts", "d", "--out", "e", "--min-cosine", "0.5");
+        Assert.Equal(ExitCodes.Usage, code);
+        Assert.Contains("--min-cosine", stderr);
+    }
+
     // ---------------------------------------------------------------- score
 
     [Fact]
@@ -51,6 +73,41 @@ public sealed class MergeTestCommandTests : IDisposable
         Assert.True(run.GetProperty("alignment_residual_after").GetDouble() < 1e-5);
         Assert.True(run.GetProperty("alignment_median_cosine").GetDouble() > 0.99999);
         Assert.True(File.Exists(P("out/merge-test.svg")));
+    }
+
+    [Theory]
+    // Background and pseudo-words equally noisy (t = 0.62, cosine ≈ 0.85 to themselves): the pseudo-words lie as close
+    // to their span as untouched words come back to themselves, below the absolute 0.9 but at the noise floor: pass.
+    [InlineData(0.62, 0.62, ExitCodes.Ok)]
+    // Pseudo-words much noisier (t = 1.5, cosine to span ≈ 0.6) than the floor: the merge itself lost the plane: fail.
+    [InlineData(0.62, 1.5, ExitCodes.MergeTestFailed)]
+    public void Score_RetrainingNoise_CosineJudgedAgainstNoiseFloor(double backgroundNoise, double pseudoNoise, int expected)
+    {
+        // β/α = 1 − 0.3·log10 r as in the passing case above, so only the cosine criterion can decide; 60 dimensions so
+        // that the noise leaves the weights well determined (the noise part inside the plane is ~ t·√(2/60)).
+        WriteKnownMerge(_dir.Path, seed: 5, pairs: 60, background: 400, dims: 60, r => 1 - 0.3 * Math.Log10(r), backgroundNoise, pseudoNoise);
+        var (code, _, stderr) = CliRunner.Run("merge-test", "score", "--original", P("original.txt"), "--merged", P("merged.txt"),
+            "--pairs", P("pairs.csv"), "--counts", P("counts.tsv"), "--out", P("out"));
+        Assert.True(code == expected, stderr);
+        var json = Json(P("out/merge-test.json"));
+        double floor = json.GetProperty("noise_floor_cosine").GetDouble();
+        double median = json.GetProperty("median_cosine_to_span").GetDouble();
+        Assert.Equal("relative to noise floor", json.GetProperty("cosine_rule").GetString());
+        Assert.Equal(json.GetProperty("parameters").GetProperty("run").GetProperty("alignment_median_cosine").GetDouble(), floor);
+        // 1/√(1 + 0.62²) = 0.850: Procrustes on 400 words finds the rotation, so the floor is the noise itself.
+        Assert.Equal(0.85, floor, 0.02);
+        Assert.True(median < 0.9, $"median {median}: the absolute rule would fail both cases");
+        Assert.Equal(0.95 * floor, json.GetProperty("required_cosine_to_span").GetDouble(), 12);
+        Assert.Equal(0.95, json.GetProperty("parameters").GetProperty("floor_factor").GetDouble());
+        Assert.Contains("noise floor:", stderr);
+        Assert.Contains($"× noise floor = {(0.95 * floor).ToString("F3", CultureInfo.InvariantCulture)}", stderr);
+        if (expected == ExitCodes.MergeTestFailed)
+            Assert.Contains(json.GetProperty("verdict_reasons").EnumerateArray(), r => r.GetString()!.Contains("noise floor"));
+        else
+            Assert.Empty(json.GetProperty("verdict_reasons").EnumerateArray());
+        // Overriding the factor moves the verdict: asking for 1.2 × floor cannot be met.
+        Assert.Equal(ExitCodes.MergeTestFailed, CliRunner.Run("merge-test", "score", "--original", P("original.txt"), "--merged", P("merged.txt"),
+            "--pairs", P("pairs.csv"), "--counts", P("counts.tsv"), "--out", P("out2"), "--floor-factor", "1.2").code);
     }
 
     [Fact]
@@ -90,7 +147,27 @@ public sealed class MergeTestCommandTests : IDisposable
         Assert.Equal(ExitCodes.BadInput, code);
         Assert.Contains($"{P("merged.txt")}: has no vector for the pseudo-word '{known[3].Pseudo}'", stderr);
         Assert.Contains("line 5", stderr);
+        Assert.Contains("was it trained on the merged corpus?", stderr);
         Assert.False(Directory.Exists(P("out")));
+    }
+
+    [Fact]
+    public void Score_PseudoWordSplitByTrainer_ErrorSaysSo()
+    {
+        // A trainer that keeps only letters and digits cuts "fa3⊕ra3" into "fa3" and "ra3": the merged file then has
+        // both halves and no pseudo-word, which the error must name instead of a vague "not trained on it".
+        var known = WriteKnownMerge(_dir.Path, seed: 6, pairs: 10, background: 50, dims: 8, r => 0.5);
+        var lines = File.ReadAllLines(P("merged.txt")).Skip(1).ToList();
+        int at = lines.FindIndex(l => l.StartsWith(known[3].Pseudo + " ", StringComparison.Ordinal));
+        string numbers = lines[at][(known[3].Pseudo.Length + 1)..];
+        lines[at] = $"{known[3].First} {numbers}";
+        lines.Add($"{known[3].Second} {numbers}");
+        File.WriteAllLines(P("merged.txt"), lines);
+        var (code, _, stderr) = CliRunner.Run("merge-test", "score", "--original", P("original.txt"), "--merged", P("merged.txt"),
+            "--pairs", P("pairs.csv"), "--counts", P("counts.tsv"), "--out", P("out"));
+        Assert.Equal(ExitCodes.BadInput, code);
+        Assert.Contains($"the trainer split the pseudo-words at '⊕'", stderr);
+        Assert.Contains("merge-test --retrain", stderr);
     }
 
     [Fact]
@@ -185,11 +262,13 @@ public sealed class MergeTestCommandTests : IDisposable
     {
         string corpus = CorpusAndEmbedding(2, 4000, "--dim", "12", "--min-count", "2");
         var counts = EmbedCounts();
+        // 64 words: skip the 8 most frequent as function words (the default 100 would skip them all).
         var (code, _, stderr) = CliRunner.Run("merge-test", "prepare", "--corpus", corpus, "--vectors", P("emb/vectors.txt"),
-            "--counts", P("emb/counts.tsv"), "--out", P("prep"), "--pairs", "6", "--min-rare-count", "20", "--seed", "3");
+            "--counts", P("emb/counts.tsv"), "--out", P("prep"), "--pairs", "6", "--min-rare-count", "20", "--seed", "3", "--skip-frequent", "8");
         Assert.True(code == ExitCodes.Ok, stderr);
         var pairs = ReadCsv(P("prep/pairs.csv"));
         Assert.NotEmpty(pairs);
+        var topEight = counts.OrderByDescending(kv => kv.Value).Take(8).Select(kv => kv.Key).ToHashSet();
         var merged = File.ReadAllText(P("prep/corpus-merged.txt")).Split([' ', '\n'], StringSplitOptions.RemoveEmptyEntries);
         var used = new HashSet<string>();
         foreach (var p in pairs)
@@ -199,10 +278,12 @@ public sealed class MergeTestCommandTests : IDisposable
             Assert.True(used.Add(p["w1"]) && used.Add(p["w2"]), "a word in two pairs");
             Assert.Equal(f1 + f2, merged.LongCount(t => t == p["pseudo"]));
             Assert.DoesNotContain(p["w1"], merged);
+            Assert.DoesNotContain(p["w1"], topEight);
         }
+        Assert.Contains("skipped the 8 most frequent words", stderr);
         // Same seed, same pairs.
         Assert.Equal(ExitCodes.Ok, CliRunner.Run("merge-test", "prepare", "--corpus", corpus, "--vectors", P("emb/vectors.txt"),
-            "--counts", P("emb/counts.tsv"), "--out", P("prep2"), "--pairs", "6", "--min-rare-count", "20", "--seed", "3").code);
+            "--counts", P("emb/counts.tsv"), "--out", P("prep2"), "--pairs", "6", "--min-rare-count", "20", "--seed", "3", "--skip-frequent", "8").code);
         Assert.Equal(File.ReadAllText(P("prep/pairs.csv")), File.ReadAllText(P("prep2/pairs.csv")));
     }
 
@@ -288,7 +369,7 @@ public sealed class MergeTestCommandTests : IDisposable
     {
         string corpus = CorpusAndEmbedding(6, 800, "--dim", "4", "--min-count", "2");
         string other = _dir.Write("other.txt", File.ReadAllText(corpus).Replace("Ka", "Lo"));
-        var (code, _, stderr) = CliRunner.Run("merge-test", "--corpus", other, "--embedding", P("emb"), "--out", P("x"), "--pairs", "2", "--min-rare-count", "2");
+        var (code, _, stderr) = CliRunner.Run("merge-test", "--corpus", other, "--embedding", P("emb"), "--out", P("x"), "--pairs", "2", "--min-rare-count", "2", "--skip-frequent", "0");
         Assert.Equal(ExitCodes.BadInput, code);
         Assert.Contains($"input {other}: differs from", stderr);
         Assert.Contains("SHA-256", stderr);

@@ -86,9 +86,13 @@ internal static class MergeTestFixtures
     /// <summary>
     /// Writes original.txt (background words and pair words, Gaussian vectors), merged.txt (the background words and a
     /// pseudo-word α·v1 + β·v2 per pair, all rotated by one random orthogonal matrix), counts.tsv and pairs.csv into
-    /// <paramref name="dir"/>. β/α = <paramref name="weightRatio"/>(r), r log-uniform over [1, 1000].
+    /// <paramref name="dir"/>. β/α = <paramref name="weightRatio"/>(r), r log-uniform over [1, 1000]. With noise t > 0,
+    /// each merged-file vector x gets a Gaussian direction of norm t·||x|| added before the rotation (background words
+    /// <paramref name="backgroundNoise"/>, pseudo-words <paramref name="pseudoNoise"/>), a stand-in for retraining noise:
+    /// a background word then comes back at cosine about 1/√(1 + t²) to itself.
     /// </summary>
-    public static List<KnownMerge> WriteKnownMerge(string dir, int seed, int pairs, int background, int dims, Func<double, double> weightRatio)
+    public static List<KnownMerge> WriteKnownMerge(string dir, int seed, int pairs, int background, int dims, Func<double, double> weightRatio,
+        double backgroundNoise = 0, double pseudoNoise = 0)
     {
         var rng = new Random(seed);
         var words = new List<string>();
@@ -98,11 +102,18 @@ internal static class MergeTestFixtures
         var mergedValues = new List<float>();
         var rotation = RandomRotation(rng, dims);
         float[] Gaussian() => Enumerable.Range(0, dims).Select(_ => (float)MergeTestData.Gaussian(rng)).ToArray();
+        float[] Noisy(float[] x, double t)
+        {
+            if (t == 0) return x;
+            var n = Gaussian();
+            double scale = t * Math.Sqrt(x.Sum(a => (double)a * a) / n.Sum(a => (double)a * a));
+            return x.Select((a, j) => (float)(a + scale * n[j])).ToArray();
+        }
         for (int i = 0; i < background; i++)
         {
             var v = Gaussian();
             words.Add($"bg{i}"); values.AddRange(v); counts.Add(100 + rng.Next(1000));
-            mergedWords.Add($"bg{i}"); mergedValues.AddRange(Rotate(v, rotation, dims));
+            mergedWords.Add($"bg{i}"); mergedValues.AddRange(Rotate(Noisy(v, backgroundNoise), rotation, dims));
         }
         var known = new List<KnownMerge>();
         for (int p = 0; p < pairs; p++)
@@ -120,7 +131,7 @@ internal static class MergeTestFixtures
             words.Add(b); values.AddRange(v2); counts.Add(f2);
             var m = new float[dims];
             for (int j = 0; j < dims; j++) m[j] = (float)(alpha * v1[j] + beta * v2[j]);
-            mergedWords.Add(pseudo); mergedValues.AddRange(Rotate(m, rotation, dims));
+            mergedWords.Add(pseudo); mergedValues.AddRange(Rotate(Noisy(m, pseudoNoise), rotation, dims));
             known.Add(new KnownMerge(a, b, pseudo, f1, f2, alpha, beta));
         }
         VectorFile.WriteText(Path.Combine(dir, "original.txt"), new WordVectors([.. words], [.. values], dims));

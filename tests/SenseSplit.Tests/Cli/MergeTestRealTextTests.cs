@@ -49,8 +49,11 @@ public sealed class MergeTestRealTextTests(ITestOutputHelper output) : IDisposab
         var err = new StringWriter();
         Assert.Equal(ExitCodes.Ok, CliApp.Run(["embed", corpus, "--out", embedding, "--dim", "100", "--max-words", "20000", "--seed", "1"], new StringWriter(), err));
 
-        var (foldCode, fold) = Run("merge-test", "--corpus", corpus, "--embedding", embedding, "--out", Path.Combine(_dir, "fold"));
-        var (retrainCode, retrain) = Run("merge-test", "--corpus", corpus, "--embedding", embedding, "--out", Path.Combine(_dir, "retrain"), "--retrain");
+        // The slice has 0.77 M tokens. With its 100 most frequent words skipped, the most frequent pairable word occurs
+        // 633 times, so the rarer word may go down to embed's --min-count 5 to reach r ≈ 100, the range of the
+        // preprint's c ≈ 0.5 (with the default 20, r stops near 30).
+        var (foldCode, fold) = Run("merge-test", "--corpus", corpus, "--embedding", embedding, "--out", Path.Combine(_dir, "fold"), "--min-rare-count", "5");
+        var (retrainCode, retrain) = Run("merge-test", "--corpus", corpus, "--embedding", embedding, "--out", Path.Combine(_dir, "retrain"), "--retrain", "--min-rare-count", "5");
 
         foreach (var (name, code, json) in new[] { ("fold-in", foldCode, fold), ("retrain", retrainCode, retrain) })
         {
@@ -71,11 +74,37 @@ public sealed class MergeTestRealTextTests(ITestOutputHelper output) : IDisposab
         Assert.True(fold.GetProperty("median_cosine_to_span").GetDouble() >= 0.9);
         Assert.Equal(0, foldRun.GetProperty("words_counted_differently").GetInt32());
         Assert.True(foldRun.GetProperty("fold_in_own_row_median_cosine").GetDouble() > 0.99);
+        Assert.Equal("absolute", fold.GetProperty("cosine_rule").GetString());
         // A full re-embedding cannot fit a pseudo-word better than untouched words fit themselves after alignment;
-        // here it should come close to that floor (both are limited by the same retraining noise).
+        // here it should come close to that floor (both are limited by the same retraining noise), and the verdict
+        // judges it against that floor, measured in the same run.
         double floor = retrain.GetProperty("parameters").GetProperty("run").GetProperty("alignment_median_cosine").GetDouble();
-        Assert.InRange(retrain.GetProperty("median_cosine_to_span").GetDouble(), floor - 0.05, 1);
+        double retrainCosine = retrain.GetProperty("median_cosine_to_span").GetDouble();
+        Assert.InRange(retrainCosine, floor - 0.05, 1);
+        Assert.Equal("relative to noise floor", retrain.GetProperty("cosine_rule").GetString());
+        Assert.Equal(floor, retrain.GetProperty("noise_floor_cosine").GetDouble());
+        Assert.Equal(0.95 * floor, retrain.GetProperty("required_cosine_to_span").GetDouble(), 12);
+        bool cosineReason = retrain.GetProperty("verdict_reasons").EnumerateArray().Any(r => r.GetString()!.Contains("cosine to span"));
+        Assert.Equal(retrainCosine < 0.95 * floor, cosineReason);
+
+        // Pair choice: no function word and no number. The reference list is the 25 most common words of the Oxford
+        // English Corpus (as commonly published, e.g. in "Most common words in English"), all function words or
+        // auxiliaries. 23 of them are among the 100 most frequent words of this slice, so none of those may be paired;
+        // "you" and "do" are rarer in dictionary prose (ranks 243 and 270 here), which the frequency rule cannot know.
+        string[] commonest = ["the", "be", "to", "of", "and", "a", "in", "that", "have", "i", "it", "for", "not", "on", "with",
+            "he", "as", "at", "this", "but", "his", "by", "from"];
+        var chosen = ReadPairWords(Path.Combine(_dir, "fold", "pairs.csv"));
+        Assert.Empty(chosen.Intersect(commonest));
+        Assert.DoesNotContain(chosen, w => w.Any(char.IsDigit) || !w.Any(char.IsLetter));
+        Assert.Equal(100, fold.GetProperty("parameters").GetProperty("run").GetProperty("skipped_function_words").GetInt32());
+        // Not vacuous: without the rule the high-ratio bins reach for exactly those words.
+        var (_, open) = Run("merge-test", "--corpus", corpus, "--embedding", embedding, "--out", Path.Combine(_dir, "open"), "--skip-frequent", "0", "--min-rare-count", "5");
+        Assert.Equal(0, open.GetProperty("parameters").GetProperty("run").GetProperty("skipped_function_words").GetInt32());
+        Assert.NotEmpty(ReadPairWords(Path.Combine(_dir, "open", "pairs.csv")).Intersect(commonest));
     }
+
+    private static HashSet<string> ReadPairWords(string pairsCsv)
+        => MergeTestFixtures.ReadCsv(pairsCsv).SelectMany(r => new[] { r["w1"], r["w2"] }).ToHashSet(StringComparer.Ordinal);
 
     /// <summary>GCIDE text with pronunciations (\...\), bracketed notes ([...]) and braces removed (as the embed
     /// real-text test prepares it, without its synonym filter, which this test does not need).</summary>

@@ -1,5 +1,6 @@
 using System.Globalization;
 using System.Numerics.Tensors;
+using System.Text;
 
 namespace SenseSplit.Core.Senses.MergeTest;
 
@@ -21,6 +22,17 @@ public sealed record PairSelectionSettings
     /// <summary>Frequent-word candidates drawn per rare word before moving to the next rare word.</summary>
     public int TriesPerRareWord { get; init; } = 20;
     public int Seed { get; init; } = 1;
+    /// <summary>
+    /// The this-many most frequent words of the vocabulary (by count, ties by row) count as function words and are
+    /// never paired; 0 pairs them too. Our choice: 100. In English text the hundred most frequent words are nearly all
+    /// function words (articles, prepositions, pronouns, auxiliaries) and together make up about half of all tokens
+    /// (a commonly cited figure for large English corpora). Merging one of them changes the context of almost every
+    /// other word, so the merge would no longer be a local change, and their vectors carry syntax rather than a sense.
+    /// </summary>
+    public int SkipMostFrequent { get; init; } = 100;
+    /// <summary>Only words with at least one letter and no number character (<see cref="PairSelector.IsPlainWord"/>)
+    /// are paired: numbers, dates, section marks and punctuation tokens have no sense to keep apart.</summary>
+    public bool PlainWordsOnly { get; init; } = true;
     /// <summary>Words never used in a pair (e.g. glossary terms or stop words), compared ordinally.</summary>
     public IReadOnlySet<string>? Excluded { get; init; }
 }
@@ -28,12 +40,21 @@ public sealed record PairSelectionSettings
 /// <summary>The chosen pairs, the bins they were spread over, how many landed in each, and notes on shortfalls or
 /// on user pairs that break a selection rule.</summary>
 public sealed record PairSelection(IReadOnlyList<MergePair> Pairs, RatioBins Bins, IReadOnlyList<int> PairsPerBin,
-    IReadOnlyList<int> TargetPerBin, int EligibleWords, IReadOnlyList<string> Notes);
+    IReadOnlyList<int> TargetPerBin, int EligibleWords, IReadOnlyList<string> Notes)
+{
+    /// <summary>Words left out as function words (<see cref="PairSelectionSettings.SkipMostFrequent"/>).</summary>
+    public int SkippedFrequent { get; init; }
+    /// <summary>Words left out for having no letter or a number character (<see cref="PairSelectionSettings.PlainWordsOnly"/>).</summary>
+    public int SkippedNotPlain { get; init; }
+    /// <summary>Count of the most frequent word that may still be paired (0 when none may).</summary>
+    public long MostFrequentPairable { get; init; }
+}
 
 /// <summary>
 /// Chooses pairs (w1, w2) of unrelated words to merge: f1 ≥ f2 ≥ MinRareCount, r = f1/f2 spread over log-spaced bins of
 /// [1, MaxRatio], |cos(v1, v2)| &lt; MaxAbsCosine, disjoint top-k neighbour sets that hold neither word, every word in at
-/// most one pair. Words are rows of a words×dims row-major matrix; counts are corpus frequencies.
+/// most one pair, no function word (the SkipMostFrequent most frequent words) and no token without letters or with a
+/// number character. Words are rows of a words×dims row-major matrix; counts are corpus frequencies.
 /// </summary>
 /// <remarks>
 /// The pseudo-word design (merge two unrelated words, re-embed, compare) follows Arora, Li, Liang, Ma &amp; Risteski
@@ -118,11 +139,19 @@ public sealed class PairSelector
         CheckSettings(s);
         var bins = new RatioBins(s.Bins, s.MaxRatio);
         var rng = new Random(s.Seed);
+        var frequent = MostFrequent(s.SkipMostFrequent);
+        int skippedNotPlain = 0;
+        bool Plain(int i)
+        {
+            if (!s.PlainWordsOnly || IsPlainWord(_words[i])) return true;
+            skippedNotPlain++;
+            return false;
+        }
 
         // Eligible words sorted by count (ties by row) for range look-ups of frequent partners.
         var eligible = Enumerable.Range(0, _words.Length)
             .Where(i => _counts[i] >= s.MinRareCount && _inverseNorms[i] > 0 && !PseudoWord.IsPseudoWord(_words[i])
-                        && (s.Excluded is null || !s.Excluded.Contains(_words[i])))
+                        && !frequent[i] && Plain(i) && (s.Excluded is null || !s.Excluded.Contains(_words[i])))
             .OrderBy(i => _counts[i]).ThenBy(i => i).ToArray();
         var sortedCounts = eligible.Select(i => _counts[i]).ToArray();
         // Rare-word candidates in one seeded order (Fisher–Yates), shared by all bins.
@@ -190,7 +219,37 @@ public sealed class PairSelector
         if (pairs.Count < s.Pairs)
             notes.Add($"{pairs.Count} of {s.Pairs} pairs found among {eligible.Length} words with count >= {s.MinRareCount.ToString(CultureInfo.InvariantCulture)}");
 
-        return new PairSelection(pairs, bins, perBin, target, eligible.Length, notes);
+        return new PairSelection(pairs, bins, perBin, target, eligible.Length, notes)
+        {
+            SkippedFrequent = frequent.Count(f => f), SkippedNotPlain = skippedNotPlain,
+            MostFrequentPairable = eligible.Length == 0 ? 0 : _counts[eligible[^1]],
+        };
+    }
+
+    /// <summary>
+    /// True when <paramref name="word"/> has at least one letter (Unicode category L*) and no number character
+    /// (category N*: digits, Roman-numeral letters, fractions). "1st", "x2", "§", "--" and "3.14" are not plain words;
+    /// "don't", "well-known" and "naïve" are.
+    /// </summary>
+    public static bool IsPlainWord(string word)
+    {
+        ArgumentNullException.ThrowIfNull(word);
+        bool letter = false;
+        foreach (var rune in word.EnumerateRunes())
+        {
+            if (Rune.IsNumber(rune)) return false;
+            if (Rune.IsLetter(rune)) letter = true;
+        }
+        return letter;
+    }
+
+    /// <summary>Flags the <paramref name="n"/> rows of highest count (ties by row), the function words.</summary>
+    private bool[] MostFrequent(int n)
+    {
+        var flags = new bool[_words.Length];
+        if (n <= 0) return flags;
+        foreach (int i in Enumerable.Range(0, _words.Length).OrderByDescending(i => _counts[i]).ThenBy(i => i).Take(n)) flags[i] = true;
+        return flags;
     }
 
     /// <summary>
@@ -208,6 +267,7 @@ public sealed class PairSelector
         var pairs = new List<MergePair>();
         var notes = new List<string>();
         var perBin = new int[bins.Count];
+        var frequent = MostFrequent(s.SkipMostFrequent);
         for (int p = 0; p < userPairs.Count; p++)
         {
             var (a, b) = userPairs[p];
@@ -231,6 +291,11 @@ public sealed class PairSelector
             if (_counts[r] < s.MinRareCount) notes.Add($"{where}: rarer word count {_counts[r]} is below {s.MinRareCount}");
             if (!(Math.Abs(cos) < s.MaxAbsCosine)) notes.Add($"{where}: |cos| = {Math.Abs(cos).ToString("F3", CultureInfo.InvariantCulture)} is not below {s.MaxAbsCosine.ToString("G", CultureInfo.InvariantCulture)}");
             if (!NeighboursDisjoint(f, r, s.Neighbours)) notes.Add($"{where}: the two words share nearest neighbours");
+            foreach (int w in new[] { f, r })
+            {
+                if (frequent[w]) notes.Add($"{where}: '{_words[w]}' is among the {s.SkipMostFrequent.ToString(CultureInfo.InvariantCulture)} most frequent words (a function word)");
+                else if (s.PlainWordsOnly && !IsPlainWord(_words[w])) notes.Add($"{where}: '{_words[w]}' is not a plain word (it needs a letter and no digit)");
+            }
             if (pair.Ratio > s.MaxRatio) notes.Add($"{where}: ratio {pair.Ratio.ToString("G4", CultureInfo.InvariantCulture)} is above {s.MaxRatio.ToString("G", CultureInfo.InvariantCulture)} (counted in the last bin)");
         }
         return new PairSelection(pairs, bins, perBin, perBin.ToArray(), pairs.Count, notes);
@@ -269,6 +334,7 @@ public sealed class PairSelector
         Guard.Positive(s.Bins);
         Guard.Positive(s.Neighbours);
         Guard.Positive(s.TriesPerRareWord);
+        Guard.NonNegative(s.SkipMostFrequent);
         if (s.MinRareCount < 1) throw new ArgumentOutOfRangeException(nameof(s), s.MinRareCount, $"minimum rare count ({s.MinRareCount}) must be at least 1");
         if (!(s.MaxAbsCosine > 0 && s.MaxAbsCosine <= 1)) throw new ArgumentOutOfRangeException(nameof(s), s.MaxAbsCosine, $"cosine threshold ({s.MaxAbsCosine}) must lie in (0, 1]");
         if (!(s.MaxRatio > 1) || !double.IsFinite(s.MaxRatio)) throw new ArgumentOutOfRangeException(nameof(s), s.MaxRatio, $"largest ratio ({s.MaxRatio}) must be finite and above 1");

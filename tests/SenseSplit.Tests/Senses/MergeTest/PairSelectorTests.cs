@@ -4,20 +4,29 @@ namespace SenseSplit.Tests.Senses.MergeTest;
 
 public class PairSelectorTests
 {
-    // 3,000 words with Zipf counts f_i = round(2·10⁶ / (i+1)) (Zipf's law with exponent 1, common practice for text)
-    // and random Gaussian vectors in 40 dimensions, where |cos| of two random words exceeds 0.2 about a fifth of the
-    // time, so the cosine rule really rejects candidates. Every tenth word gets a near-copy (cos ≈ 0.99) so that
-    // neighbour sets overlap for some candidates.
+    // 3,000 words. The 100 most frequent (the ones the selector skips as function words) have Zipf counts
+    // f_i = round(2·10⁶ / (i+1)) (Zipf's law with exponent 1, common practice for text); below them counts fall
+    // log-linearly from 19,802 to 20 at the last row, so that the pairable words alone span a ratio of 1000, as the
+    // long tail of a corpus of some 25 M tokens does (a Zipf tail over 3,000 words would span only 30). Random Gaussian
+    // vectors in 40 dimensions, where |cos| of two random words exceeds 0.2 about a fifth of the time, so the cosine
+    // rule really rejects candidates. Every tenth word gets a near-copy (cos ≈ 0.99) so that neighbour sets overlap
+    // for some candidates.
     private static (string[] words, float[] vectors, long[] counts) Vocabulary(int n = 3000, int dims = 40, int seed = 7)
     {
         var rng = new Random(seed);
-        var words = Enumerable.Range(0, n).Select(i => $"w{i}").ToArray();
-        var counts = Enumerable.Range(0, n).Select(i => (long)Math.Round(2e6 / (i + 1))).ToArray();
+        var words = Enumerable.Range(0, n).Select(W).ToArray();
+        var counts = Enumerable.Range(0, n).Select(i => i < 100 || n <= 101
+            ? (long)Math.Round(2e6 / (i + 1))
+            : (long)Math.Round(19_802 * Math.Pow(20 / 19_802.0, (i - 100) / (double)(n - 101)))).ToArray();
         var vectors = MergeTestData.GaussianMatrix(rng, n, dims);
         for (int i = 10; i < n; i += 10)
             for (int j = 0; j < dims; j++) vectors[i * dims + j] = vectors[(i - 1) * dims + j] + (float)(0.1 * MergeTestData.Gaussian(rng));
         return (words, vectors, counts);
     }
+
+    /// <summary>Name of row i: "w" and i written in the letters a–j for the digits 0–9 ("wbc" is row 12), so that
+    /// names are plain words (no digit) and the pair choice does not skip them.</summary>
+    private static string W(int i) => "w" + string.Concat(i.ToString(System.Globalization.CultureInfo.InvariantCulture).Select(d => (char)('a' + d - '0')));
 
     private static double Cosine(float[] v, int dims, int a, int b)
     {
@@ -57,7 +66,75 @@ public class PairSelectorTests
             Assert.False(n1.Overlaps(n2), $"({p.FrequentWord}, {p.RareWord}) share neighbours");
             Assert.DoesNotContain(p.RareIndex, n1);
             Assert.DoesNotContain(p.FrequentIndex, n2);
+            // Counts fall with the row, so the 100 most frequent words (the function words) are rows 0–99.
+            Assert.True(p.FrequentIndex >= 100 && p.RareIndex >= 100, $"({p.FrequentWord}, {p.RareWord}) uses a function word");
         }
+    }
+
+    [Fact]
+    public void Select_FunctionWordsNumbersAndSymbols_NeverPaired()
+    {
+        // Every third word from row 100 on is renamed to a token that is not a plain word: numbers, a word with a
+        // digit, symbols, punctuation. The top 100 rows are the most frequent words.
+        var (words, vectors, counts) = Vocabulary();
+        string[] notPlain = ["1984", "3d", "x2", "§", "--", "3.14", "½", "Ⅻ"];
+        var planted = new HashSet<string>();
+        for (int i = 100, k = 0; i < words.Length; i += 3, k++) { words[i] = notPlain[k % notPlain.Length] + new string('\'', k / notPlain.Length); planted.Add(words[i]); }
+        var selector = new PairSelector(words, vectors, 40, counts);
+        var selection = selector.Select(Settings);
+        Assert.Equal(48, selection.Pairs.Count);
+        Assert.Equal(100, selection.SkippedFrequent);
+        // Planted tokens with a count of at least 20 (the rarer-word minimum) are the ones the rule had to skip.
+        Assert.Equal(Enumerable.Range(0, words.Length).Count(i => planted.Contains(words[i]) && counts[i] >= 20), selection.SkippedNotPlain);
+        Assert.Equal(counts[100 + 1], selection.MostFrequentPairable); // row 100 is planted, row 101 is the first plain one
+        foreach (var p in selection.Pairs)
+        {
+            Assert.True(p.FrequentIndex >= 100 && p.RareIndex >= 100, $"({p.FrequentWord}, {p.RareWord}) uses a function word");
+            Assert.DoesNotContain(p.FrequentWord, planted);
+            Assert.DoesNotContain(p.RareWord, planted);
+        }
+        // Not vacuous: with both rules off the same draw does use function words and planted tokens.
+        var open = selector.Select(Settings with { SkipMostFrequent = 0, PlainWordsOnly = false });
+        var used = open.Pairs.SelectMany(p => new[] { p.FrequentIndex, p.RareIndex }).ToList();
+        Assert.Contains(used, i => i < 100);
+        Assert.Contains(used, i => planted.Contains(words[i]));
+        Assert.Equal(0, open.SkippedFrequent);
+        Assert.Equal(0, open.SkippedNotPlain);
+    }
+
+    [Theory]
+    // Unicode general categories (Unicode Standard Annex #44, the Character Database): digits are Nd, '½' is No,
+    // 'Ⅻ' (U+216B) is Nl, '§' is Po, '⊕' is Sm; letters with diacritics ('ï', 'é') are Ll.
+    [InlineData("house", true)]
+    [InlineData("don't", true)]
+    [InlineData("well-known", true)]
+    [InlineData("naïve", true)]
+    [InlineData("café", true)]
+    [InlineData("1984", false)]
+    [InlineData("1st", false)]
+    [InlineData("x2", false)]
+    [InlineData("3.14", false)]
+    [InlineData("½", false)]
+    [InlineData("Ⅻ", false)]
+    [InlineData("§", false)]
+    [InlineData("--", false)]
+    [InlineData("", false)]
+    public void IsPlainWord_LettersWithoutNumbers(string word, bool expected)
+        => Assert.Equal(expected, PairSelector.IsPlainWord(word));
+
+    [Fact]
+    public void Select_SkipMostFrequent_TiesBrokenByRow()
+    {
+        // Rows 0–4 share the top count: skipping 3 leaves rows 3 and 4 pairable.
+        var (words, vectors, counts) = Vocabulary(n: 400);
+        for (int i = 0; i < 5; i++) counts[i] = 3_000_000;
+        var s = new PairSelectionSettings { Pairs = 400, Bins = 1, MaxRatio = 1e6, SkipMostFrequent = 3, MinRareCount = 1, MaxAbsCosine = 1, Neighbours = 1 };
+        var selection = new PairSelector(words, vectors, 40, counts).Select(s);
+        var used = selection.Pairs.SelectMany(p => new[] { p.FrequentIndex, p.RareIndex }).ToHashSet();
+        Assert.Equal(3, selection.SkippedFrequent);
+        Assert.DoesNotContain(0, used);
+        Assert.DoesNotContain(2, used);
+        Assert.Equal(3_000_000, selection.MostFrequentPairable);
     }
 
     [Fact]
@@ -91,7 +168,7 @@ public class PairSelectorTests
     {
         var (words, vectors, counts) = Vocabulary();
         words[0] = "odd" + PseudoWord.Marker + "token";
-        var excluded = new HashSet<string>(Enumerable.Range(1, 5).Select(i => $"w{i}"));
+        var excluded = new HashSet<string>(Enumerable.Range(101, 5).Select(W));
         var selection = new PairSelector(words, vectors, 40, counts).Select(Settings with { Excluded = excluded });
         var used = selection.Pairs.SelectMany(p => new[] { p.FrequentWord, p.RareWord }).ToHashSet();
         Assert.DoesNotContain(words[0], used);
@@ -102,7 +179,12 @@ public class PairSelectorTests
     public void Select_SmallVocabulary_ReportsShortfall()
     {
         var (words, vectors, counts) = Vocabulary(n: 60);
-        var selection = new PairSelector(words, vectors, 40, counts).Select(new PairSelectionSettings());
+        // All 60 words are among the 100 most frequent: with the default, none may be paired at all.
+        var none = new PairSelector(words, vectors, 40, counts).Select(new PairSelectionSettings());
+        Assert.Empty(none.Pairs);
+        Assert.Equal(60, none.SkippedFrequent);
+        var selection = new PairSelector(words, vectors, 40, counts).Select(new PairSelectionSettings { SkipMostFrequent = 0 });
+        Assert.NotEmpty(selection.Pairs);
         Assert.True(selection.Pairs.Count <= 30); // 60 words make at most 30 pairs
         Assert.True(selection.Pairs.Count < 200);
         Assert.Contains(selection.Notes, n => n.Contains("of 200 pairs found"));
@@ -133,22 +215,34 @@ public class PairSelectorTests
     {
         var (words, vectors, counts) = Vocabulary(n: 400);
         var selector = new PairSelector(words, vectors, 40, counts);
-        var selection = selector.FromUser([("w300", "w2"), ("w9", "w10")]);
-        Assert.Equal("w2", selection.Pairs[0].FrequentWord); // w2 is the more frequent one
-        Assert.Equal("w300", selection.Pairs[0].RareWord);
-        Assert.Equal(301.0 / 3, selection.Pairs[0].Ratio, 1);
-        // (w9, w10) are near-copies: kept, but the notes say they break the cosine and neighbour rules.
-        Assert.Contains(selection.Notes, n => n.Contains("pair 2 (w9, w10)") && n.Contains("|cos|"));
-        Assert.Contains(selection.Notes, n => n.Contains("pair 2 (w9, w10)") && n.Contains("neighbours"));
+        var selection = selector.FromUser([(W(300), W(2)), (W(9), W(10))]);
+        Assert.Equal(W(2), selection.Pairs[0].FrequentWord); // W(2) is the more frequent one
+        Assert.Equal(W(300), selection.Pairs[0].RareWord);
+        Assert.Equal((double)counts[2] / counts[300], selection.Pairs[0].Ratio, 12);
+        // (W(9), W(10)) are near-copies: kept, but the notes say they break the cosine and neighbour rules.
+        Assert.Contains(selection.Notes, n => n.Contains("pair 2 (wj, wba)") && n.Contains("|cos|"));
+        Assert.Contains(selection.Notes, n => n.Contains("pair 2 (wj, wba)") && n.Contains("neighbours"));
+    }
+
+    [Fact]
+    public void FromUser_FunctionWordOrNumber_KeptWithNote()
+    {
+        var (words, vectors, counts) = Vocabulary(n: 400);
+        words[300] = "1984";
+        var selection = new PairSelector(words, vectors, 40, counts).FromUser([(W(2), W(250)), ("1984", W(200))]);
+        Assert.Equal(2, selection.Pairs.Count);
+        Assert.Contains(selection.Notes, n => n.StartsWith($"pair 1 ({W(2)}, {W(250)}): '{W(2)}' is among the 100 most frequent words", StringComparison.Ordinal));
+        Assert.Contains(selection.Notes, n => n.StartsWith($"pair 2 (1984, {W(200)}): '1984' is not a plain word", StringComparison.Ordinal));
+        Assert.DoesNotContain(selection.Notes, n => n.Contains($"'{W(250)}'") || n.Contains($"'{W(200)}'"));
     }
 
     [Theory]
-    [InlineData("w1", "nosuch", "'nosuch' is not in the vocabulary")]
-    [InlineData("w1", "w1", "the two words must differ")]
+    [InlineData("wb", "nosuch", "'nosuch' is not in the vocabulary")]
+    [InlineData("wb", "wb", "the two words must differ")]
     public void FromUser_BadPair_ThrowsNamingPair(string a, string b, string message)
     {
         var (words, vectors, counts) = Vocabulary(n: 50);
-        var ex = Assert.Throws<ArgumentException>(() => new PairSelector(words, vectors, 40, counts).FromUser([("w3", "w4"), (a, b)]));
+        var ex = Assert.Throws<ArgumentException>(() => new PairSelector(words, vectors, 40, counts).FromUser([(W(3), W(4)), (a, b)]));
         Assert.Contains($"pair 2 ({a}, {b})", ex.Message);
         Assert.Contains(message, ex.Message);
     }
@@ -157,8 +251,8 @@ public class PairSelectorTests
     public void FromUser_WordReused_ThrowsNamingEarlierPair()
     {
         var (words, vectors, counts) = Vocabulary(n: 50);
-        var ex = Assert.Throws<ArgumentException>(() => new PairSelector(words, vectors, 40, counts).FromUser([("w3", "w4"), ("w5", "w6"), ("w4", "w7")]));
-        Assert.Contains("pair 3 (w4, w7): 'w4' is already used in pair 1", ex.Message);
+        var ex = Assert.Throws<ArgumentException>(() => new PairSelector(words, vectors, 40, counts).FromUser([(W(3), W(4)), (W(5), W(6)), (W(4), W(7))]));
+        Assert.Contains("pair 3 (we, wh): 'we' is already used in pair 1", ex.Message);
     }
 
     [Fact]
