@@ -28,8 +28,8 @@ public sealed record AtomNamingOptions
     /// <summary>An atom used by more than this many times the mean usage per atom is flagged generic.</summary>
     public double GenericUsageFactor { get; init; } = 5;
     /// <summary>An atom whose coherence is below baseline + this fraction of (median coherence − baseline) is flagged
-    /// diffuse; baseline = mean cosine of random word pairs.</summary>
-    public double DiffuseFraction { get; init; } = 1.0 / 3;
+    /// diffuse; baseline = mean cosine of random word pairs. ½ is our choice, set on a real-English model (docs/methods-senses.md §1).</summary>
+    public double DiffuseFraction { get; init; } = 0.5;
     /// <summary>Random word pairs drawn to estimate the baseline cosine.</summary>
     public int BaselinePairs { get; init; } = 4000;
     public int Seed { get; init; } = 1;
