@@ -44,15 +44,16 @@ public static class HtmlReport
         w.Write($"<p class=\"note\">Atoms flagged generic: {Fmt.I(generic)} · diffuse: {Fmt.I(diffuse)} of {Fmt.I(model.AtomCount)}. A sense resting only on diffuse atoms is marked doubtful, not hidden.</p></section>\n");
 
         // Terms ranked by ambiguity.
-        w.Write("<section id=\"terms\"><h2>Terms by ambiguity</h2><table class=\"grid\" id=\"overview\"><thead><tr><th>Term</th><th>Verdict</th><th class=\"r\">Senses</th><th class=\"r\">Ambiguity</th><th>Main senses</th></tr></thead><tbody>\n");
+        w.Write("<section id=\"terms\"><h2>Terms by ambiguity</h2><table class=\"grid\" id=\"overview\"><thead><tr><th>Term</th><th>Verdict</th><th class=\"r\">Senses</th><th class=\"r\">Ambiguity</th><th class=\"r\" title=\"share of words of about the same frequency that are less mixed\">Peer rank</th><th>Main senses</th></tr></thead><tbody>\n");
         foreach (int t in ranked)
         {
             var r = results[t];
             string verdict = VerdictNames.Of(r.Verdict);
             w.Write($"<tr data-verdict=\"{verdict}\" data-search=\"{E(SearchText(r))}\"><td><a href=\"#t{t}\">{E(r.Query.Term)}</a></td>");
             w.Write($"<td><span class=\"badge v-{verdict}\">{verdict}</span></td><td class=\"r\">{Fmt.I(r.Senses.Count)}</td>");
-            w.Write($"<td class=\"r\"><span class=\"amb\"><span style=\"width:{Fmt.N(100 * r.Ambiguity)}%\"></span></span> {Fmt.N(r.Ambiguity)}</td><td class=\"lab\">");
-            w.Write(E(string.Join("  /  ", r.Senses.Take(3).Select(s => string.Join(' ', s.Label.Take(4))))));
+            w.Write($"<td class=\"r\"><span class=\"amb\"><span style=\"width:{Fmt.N(100 * r.Ambiguity)}%\"></span></span> {Fmt.N(r.Ambiguity)}</td>");
+            w.Write($"<td class=\"r\">{(r.PeerRank is double pr ? Fmt.I((long)Math.Round(100 * pr)) + "%" : "")}</td><td class=\"lab\">");
+            w.Write(E(string.Join("  /  ", r.Senses.Take(3).Select(s => string.Join(' ', s.Label.Take(4)) + (s.FromCorpus ? " (from corpus)" : "")))));
             if (r.Verdict == Verdict.Unknown && r.CloseSpellings.Count > 0) w.Write(E("close: " + string.Join(", ", r.CloseSpellings)));
             w.Write("</td></tr>\n");
         }
