@@ -3,6 +3,7 @@ using System.IO.Compression;
 using System.Text;
 using System.Text.RegularExpressions;
 using SenseSplit.Cli;
+using SenseSplit.Tests.RealText;
 using Xunit.Abstractions;
 
 namespace SenseSplit.Tests.Cli;
@@ -35,7 +36,7 @@ public sealed class EmbedRealTextTests(ITestOutputHelper output) : IDisposable
 
         // Fixed slice: the lines 400,000-900,000 of the dictionary text (letters C to H or so), markup stripped.
         string corpus = Path.Combine(_dir, "gcide-slice.txt");
-        File.WriteAllLines(corpus, GcideLines().Skip(400_000).Take(500_000), new UTF8Encoding(false));
+        File.WriteAllLines(corpus, OpenCorpora.GcideLines().Skip(400_000).Take(500_000), new UTF8Encoding(false));
         output.WriteLine($"slice: {new FileInfo(corpus).Length / 1e6:F1} MB");
 
         var stdout = new StringWriter();
@@ -92,27 +93,6 @@ public sealed class EmbedRealTextTests(ITestOutputHelper output) : IDisposable
             vectors[i - 1] = v;
         }
         return (words, vectors);
-    }
-
-    /// <summary>GCIDE text: pronunciations (\...\), bracketed notes ([...]) and braces removed; "Syn:" blocks dropped
-    /// (they list synonyms, partly from WordNet, and would make the check circular).</summary>
-    private static IEnumerable<string> GcideLines()
-    {
-        using var f = File.OpenRead(Gcide);
-        using var gz = new GZipStream(f, CompressionMode.Decompress);
-        using var r = new StreamReader(gz, Encoding.UTF8);
-        var pron = new Regex(@"\\[^\\]*\\", RegexOptions.Compiled);
-        var note = new Regex(@"\[[^\]]*\]", RegexOptions.Compiled);
-        string? line;
-        bool inSyn = false;
-        while ((line = r.ReadLine()) is not null)
-        {
-            var t = line.Trim();
-            if (t.StartsWith("Syn:", StringComparison.Ordinal)) { inSyn = true; continue; }
-            if (inSyn && line.StartsWith("     ", StringComparison.Ordinal) && t.Length > 0) continue;
-            inSyn = false;
-            yield return note.Replace(pron.Replace(t, ""), "").Replace("{", "").Replace("}", "");
-        }
     }
 
     /// <summary>Pairs of distinct one-word lemmas sharing a WordNet 3.0 synset (data.noun/verb/adj/adv: after the offset,

@@ -3,6 +3,7 @@ using System.Text;
 using System.Text.Json;
 using System.Text.RegularExpressions;
 using SenseSplit.Cli;
+using SenseSplit.Tests.RealText;
 using Xunit.Abstractions;
 
 namespace SenseSplit.Tests.Cli;
@@ -44,7 +45,7 @@ public sealed class MergeTestRealTextTests(ITestOutputHelper output) : IDisposab
         // Fail loudly (not skip): CI installs the package through scripts/install-test-deps.sh.
         Assert.True(File.Exists(Gcide), $"{Gcide} is missing: {Install}");
         string corpus = Path.Combine(_dir, "gcide-slice.txt");
-        File.WriteAllLines(corpus, GcideLines().Skip(400_000).Take(200_000), new UTF8Encoding(false));
+        File.WriteAllLines(corpus, OpenCorpora.GcideLines(keepSynonymBlocks: true).Skip(400_000).Take(200_000), new UTF8Encoding(false));
         string embedding = Path.Combine(_dir, "emb");
         var err = new StringWriter();
         Assert.Equal(ExitCodes.Ok, CliApp.Run(["embed", corpus, "--out", embedding, "--dim", "100", "--max-words", "20000", "--seed", "1"], new StringWriter(), err));
@@ -105,18 +106,4 @@ public sealed class MergeTestRealTextTests(ITestOutputHelper output) : IDisposab
 
     private static HashSet<string> ReadPairWords(string pairsCsv)
         => MergeTestFixtures.ReadCsv(pairsCsv).SelectMany(r => new[] { r["w1"], r["w2"] }).ToHashSet(StringComparer.Ordinal);
-
-    /// <summary>GCIDE text with pronunciations (\...\), bracketed notes ([...]) and braces removed (as the embed
-    /// real-text test prepares it, without its synonym filter, which this test does not need).</summary>
-    private static IEnumerable<string> GcideLines()
-    {
-        using var f = File.OpenRead(Gcide);
-        using var gz = new GZipStream(f, CompressionMode.Decompress);
-        using var r = new StreamReader(gz, Encoding.UTF8);
-        var pron = new Regex(@"\\[^\\]*\\", RegexOptions.Compiled);
-        var note = new Regex(@"\[[^\]]*\]", RegexOptions.Compiled);
-        string? line;
-        while ((line = r.ReadLine()) is not null)
-            yield return note.Replace(pron.Replace(line.Trim(), ""), "").Replace("{", "").Replace("}", "");
-    }
 }

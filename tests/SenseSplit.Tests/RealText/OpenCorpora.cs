@@ -22,13 +22,14 @@ public static partial class OpenCorpora
     public static void RequireWordNet() => Assert.True(File.Exists(Path.Combine(WordNet, "index.noun")), $"{WordNet}/index.noun is missing: {Install}");
 
     /// <summary>GCIDE text: pronunciations (\...\), bracketed notes ([...]) and braces removed; "Syn:" blocks dropped
-    /// (they list synonyms, partly from WordNet, and would make WordNet checks circular).</summary>
-    public static IEnumerable<string> GcideLines() => DictLines(Gcide, gcide: true);
+    /// unless <paramref name="keepSynonymBlocks"/> (they list synonyms, partly from WordNet, and would make WordNet
+    /// checks circular).</summary>
+    public static IEnumerable<string> GcideLines(bool keepSynonymBlocks = false) => DictLines(Gcide, gcide: true, keepSynonymBlocks);
 
     /// <summary>FOLDOC text as served by dictd: one line per line, headwords and cross-references as plain words.</summary>
-    public static IEnumerable<string> FoldocLines() => DictLines(Foldoc, gcide: false);
+    public static IEnumerable<string> FoldocLines() => DictLines(Foldoc, gcide: false, keepSynonymBlocks: true);
 
-    private static IEnumerable<string> DictLines(string path, bool gcide)
+    private static IEnumerable<string> DictLines(string path, bool gcide, bool keepSynonymBlocks)
     {
         using var f = File.OpenRead(path);
         using var gz = new GZipStream(f, CompressionMode.Decompress);
@@ -40,9 +41,12 @@ public static partial class OpenCorpora
             var t = line.Trim();
             if (gcide)
             {
-                if (t.StartsWith("Syn:", StringComparison.Ordinal)) { inSyn = true; continue; }
-                if (inSyn && line.StartsWith("     ", StringComparison.Ordinal) && t.Length > 0) continue;
-                inSyn = false;
+                if (!keepSynonymBlocks)
+                {
+                    if (t.StartsWith("Syn:", StringComparison.Ordinal)) { inSyn = true; continue; }
+                    if (inSyn && line.StartsWith("     ", StringComparison.Ordinal) && t.Length > 0) continue;
+                    inSyn = false;
+                }
                 t = Note().Replace(Pronunciation().Replace(t, ""), "");
             }
             yield return t.Replace("{", "").Replace("}", "");
