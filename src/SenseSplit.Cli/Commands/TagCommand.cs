@@ -16,22 +16,23 @@ public static class TagCommand
     {
         var command = new Command("tag", "Assign each occurrence of a glossary term in text read from standard input to one of its senses (JSON lines).");
         var model = new Option<string>("--model") { Description = "Model folder written by 'sensesplit atoms'.", Required = true };
-        var terms = new Option<string>("--terms") { Description = "Glossary: CSV with a 'term' column (, ; or tab), or one term per line.", Required = true };
+        var terms = new Option<string?>("--terms") { Description = "Glossary: CSV with a 'term' column (, ; or tab), or one term per line. Its terms are split afresh (without corpus evidence)." };
+        var senses = new Option<string?>("--senses") { Description = "senses.jsonl of an audit of this model: tag with exactly those terms and senses (same ids, including senses found in the audit's corpus). Instead of --terms." };
         var input = new Option<string?>("--input") { Description = "Read the text from this file instead of standard input." };
         var vectors = new Option<string?>("--vectors") { Description = "Vectors file the model should have been learned from (checked by SHA-256)." };
-        foreach (var o in new Option[] { model, terms, input, vectors }) command.Options.Add(o);
+        foreach (var o in new Option[] { model, terms, senses, input, vectors }) command.Options.Add(o);
         command.SetAction(parse =>
         {
+            string? termsPath = parse.GetValue(terms), sensesPath = parse.GetValue(senses);
+            if ((termsPath is null) == (sensesPath is null))
+                throw new UserFacingException("give either --terms (a glossary) or --senses (an audit's senses.jsonl)", ExitCodes.Usage);
             var content = AuditInputs.LoadModel(parse.GetValue(model)!, parse.GetValue(vectors));
-            var glossary = GlossaryReader.Read(parse.GetValue(terms)!, context.Warn);
             var path = parse.GetValue(input);
             if (path is not null && !File.Exists(path)) throw new UserFacingException($"{path}: input file not found");
-            if (path is null) Execute(content, glossary, Console.In, context.Out, context);
-            else
-            {
-                using var reader = new StreamReader(path, Encoding.UTF8, detectEncodingFromByteOrderMarks: true);
-                Execute(content, glossary, reader, context.Out, context);
-            }
+            using var reader = path is null ? null : new StreamReader(path, Encoding.UTF8, detectEncodingFromByteOrderMarks: true);
+            TextReader text = reader ?? Console.In;
+            if (sensesPath is not null) ExecuteWithSenses(content, sensesPath, text, context.Out, context);
+            else Execute(content, GlossaryReader.Read(termsPath!, context.Warn), text, context.Out, context);
             return ExitCodes.Ok;
         });
         return command;
@@ -52,6 +53,19 @@ public static class TagCommand
         if (text.Length > 0 && text[0] == '\uFEFF') text = text[1..];
         long n = tagger.Tag(text, output);
         context.Err.WriteLine($"tagged {n} occurrences of {results.Count(r => r.Verdict != Verdict.Unknown)} terms");
+        return n;
+    }
+
+    /// <summary>Tags <paramref name="input"/> with the terms and senses of an audit's senses.jsonl.</summary>
+    public static long ExecuteWithSenses(ModelContent content, string sensesPath, TextReader input, TextWriter output, CliContext context)
+    {
+        var model = AuditInputs.BuildSenseModel(content, AuditCommand.Options(new AuditSettings { Neighbours = 0 }));
+        var results = AuditSensesFile.Read(sensesPath, model).Where(r => r.Senses.Count > 0).ToArray();
+        var tagger = new Tagger(model, results);
+        string text = input.ReadToEnd();
+        if (text.Length > 0 && text[0] == '\uFEFF') text = text[1..];
+        long n = tagger.Tag(text, output);
+        context.Err.WriteLine($"tagged {n} occurrences of {results.Length} terms from {sensesPath}");
         return n;
     }
 
