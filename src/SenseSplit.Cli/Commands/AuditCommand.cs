@@ -40,6 +40,7 @@ public static class AuditCommand
                 LabelMinCount = parse.GetValue(minCount),
             };
             Validate(settings);
+            AuditInputs.CheckOutputFolder(parse.GetValue(output)!, OutputFiles);
             var content = AuditInputs.LoadModel(parse.GetValue(model)!, parse.GetValue(vectors));
             var glossary = GlossaryReader.Read(parse.GetValue(terms)!, context.Warn);
             var files = parse.GetValue(corpus) ?? [];
@@ -90,9 +91,13 @@ public static class AuditCommand
         return new AuditReport(model, content.Manifest, glossary, results, corpus, settings.Examples);
     }
 
+    /// <summary>The files an audit folder holds; an existing folder with anything else is never replaced.</summary>
+    public static readonly string[] OutputFiles = ["atoms.csv", "senses.csv", "senses.jsonl", "report.html"];
+
     /// <summary>Writes atoms.csv, senses.csv, senses.jsonl and report.html into <paramref name="directory"/>, atomically.</summary>
     public static void WriteOutputs(AuditReport report, string directory, CliContext context)
     {
+        AuditInputs.CheckOutputFolder(directory, OutputFiles);
         AuditInputs.WriteFolderAtomically(directory, tmp =>
         {
             using (var w = new StreamWriter(Path.Combine(tmp, "atoms.csv"), false, CsvReports.Utf8NoBom)) CsvReports.WriteAtoms(report, w);

@@ -71,6 +71,21 @@ public static class AuditInputs
     public static SenseModel BuildSenseModel(ModelContent model, SenseOptions options)
         => SenseModel.Build(model.Vectors, model.Atoms, model.AtomCount, model.Codes, model.Counts, options);
 
+    /// <summary>Throws (before any long computation) when <paramref name="directory"/> may not be replaced: it is a file,
+    /// or an existing folder holding anything but <paramref name="ownFiles"/> (an earlier output of the same command).
+    /// Replacing a folder deletes what it holds, so a folder of other files is never taken for an output.</summary>
+    public static void CheckOutputFolder(string directory, IReadOnlyCollection<string> ownFiles)
+    {
+        var full = Path.GetFullPath(directory);
+        if (File.Exists(full))
+            throw new UserFacingException($"{directory}: is a file; the output must be a folder", ExitCodes.WriteFailed);
+        if (!Directory.Exists(full)) return;
+        var foreign = Directory.EnumerateFileSystemEntries(full).Select(Path.GetFileName)
+            .Where(n => n is not null && !ownFiles.Contains(n, StringComparer.Ordinal)).Order(StringComparer.Ordinal).Take(3).ToArray();
+        if (foreign.Length > 0)
+            throw new UserFacingException($"{directory}: exists and holds other files ({string.Join(", ", foreign)}); refusing to replace it (choose a new or empty folder, or one written by this command)", ExitCodes.WriteFailed);
+    }
+
     /// <summary>Writes a folder atomically: <paramref name="write"/> fills a temporary folder beside
     /// <paramref name="directory"/>, which then replaces it.</summary>
     public static void WriteFolderAtomically(string directory, Action<string> write)

@@ -96,10 +96,12 @@ public class AuditCommandTests
     public void WriteOutputs_ExistingFolder_ReplacedWithoutLeftovers()
     {
         var (dir, report, _) = RunFixtureAudit();
-        File.WriteAllText(Path.Combine(dir, "stale.txt"), "old");
+        File.WriteAllText(Path.Combine(dir, "senses.csv"), "old");
+        File.Delete(Path.Combine(dir, "report.html"));
         var (context, _, _) = AuditFixtures.Context();
         AuditCommand.WriteOutputs(report, dir, context);
-        Assert.False(File.Exists(Path.Combine(dir, "stale.txt")));
+        Assert.NotEqual("old", File.ReadAllText(Path.Combine(dir, "senses.csv")));
+        Assert.True(File.Exists(Path.Combine(dir, "report.html")));
         Assert.DoesNotContain(Directory.GetDirectories(Path.GetDirectoryName(dir)!), d => Path.GetFileName(d).StartsWith('.'));
     }
 
@@ -223,5 +225,28 @@ public class AuditCommandTests
         Assert.Equal(ExitCodes.BadInput, code);
         Assert.Contains("is not the one the model in", err.ToString());
         Assert.False(Directory.Exists(Path.Combine(dir, "o")));
+    }
+}
+
+public class AuditOutputFolderTests
+{
+    [Fact]
+    public void WriteOutputs_FolderWithOtherFiles_RefusedAndKept()
+    {
+        var (context, _, _) = AuditFixtures.Context();
+        string dir = Path.Combine(AuditFixtures.TempDir(), "mine");
+        Directory.CreateDirectory(dir);
+        File.WriteAllText(Path.Combine(dir, "readme.txt"), "keep me");
+        var glossary = SenseSplit.Cli.IO.Glossary.FromTerms(["bank"]);
+        var report = AuditCommand.Execute(AuditCommandTests.Model.Value, glossary, null, new AuditSettings(), context);
+        var e = Assert.Throws<UserFacingException>(() => AuditCommand.WriteOutputs(report, dir, context));
+        Assert.Contains("holds other files (readme.txt)", e.Message);
+        Assert.Equal(ExitCodes.WriteFailed, e.ExitCode);
+        Assert.Equal("keep me", File.ReadAllText(Path.Combine(dir, "readme.txt")));
+        // An earlier audit folder is replaced.
+        string again = Path.Combine(AuditFixtures.TempDir(), "audit");
+        AuditCommand.WriteOutputs(report, again, context);
+        AuditCommand.WriteOutputs(report, again, context);
+        Assert.Equal(AuditCommand.OutputFiles.Order(StringComparer.Ordinal), Directory.GetFiles(again).Select(Path.GetFileName).Order(StringComparer.Ordinal));
     }
 }
