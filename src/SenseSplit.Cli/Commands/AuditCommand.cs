@@ -23,7 +23,7 @@ public static class AuditCommand
         var model = new Option<string>("--model") { Description = "Model folder written by 'sensesplit atoms'.", Required = true };
         var terms = new Option<string>("--terms") { Description = "Glossary: CSV with a 'term' column (, ; or tab), or one term per line.", Required = true };
         var output = new Option<string>("--out") { Description = "Folder to write atoms.csv, senses.csv, senses.jsonl and report.html to (replaced atomically).", Required = true };
-        var corpus = new Option<string[]>("--corpus") { Description = "Text file(s) whose occurrences of the terms give examples and evidence.", AllowMultipleArgumentsPerToken = true };
+        var corpus = new Option<string[]>("--corpus") { Description = "Text files or folders (searched for *.txt and *.txt.gz; gzip allowed) whose occurrences of the terms give examples, evidence and senses the vectors lost.", AllowMultipleArgumentsPerToken = true };
         var examples = new Option<int>("--examples") { Description = "Example contexts kept per sense (with --corpus).", DefaultValueFactory = _ => 3 };
         var neighbours = new Option<int>("--neighbours") { Description = "Neighbour words listed per sense.", DefaultValueFactory = _ => 10 };
         var vectors = new Option<string?>("--vectors") { Description = "Vectors file the model should have been learned from (checked by SHA-256)." };

@@ -1,3 +1,4 @@
+using System.Text;
 using System.Security.Cryptography;
 using SenseSplit.Cli.IO;
 using SenseSplit.Core.Senses;
@@ -52,18 +53,31 @@ public static class AuditInputs
                 "learn atoms from this file first, or pass the model learned from it");
     }
 
+    /// <summary>Reads the audit corpus: files as given, folders searched recursively for <c>*.txt</c> and
+    /// <c>*.txt.gz</c> (as <c>embed</c> does), gzip recognised by its magic bytes; each file is one document.</summary>
     public static IReadOnlyList<CorpusDocument> ReadCorpus(IReadOnlyList<string> files, CliContext context)
     {
-        var docs = new List<CorpusDocument>();
+        if (files.Contains("-")) throw new UserFacingException("--corpus: standard input ('-') is not supported here; name files or folders", ExitCodes.Usage);
         foreach (var f in files)
+            if (!File.Exists(f) && !Directory.Exists(f)) throw new UserFacingException($"{f}: corpus file or folder not found");
+        var docs = new List<CorpusDocument>();
+        foreach (var input in CorpusSource.Resolve(files, () => Stream.Null, Path.GetTempPath()))
         {
-            if (!File.Exists(f)) throw new UserFacingException($"{f}: corpus file not found");
             string text;
-            try { text = File.ReadAllText(f); }
-            catch (IOException ex) { throw new UserFacingException($"{f}: cannot read the corpus file ({ex.Message})"); }
+            try
+            {
+                using var file = File.OpenRead(input.Path);
+                using Stream stream = input.Gzip ? new System.IO.Compression.GZipStream(file, System.IO.Compression.CompressionMode.Decompress) : file;
+                using var reader = new StreamReader(stream, new UTF8Encoding(false), detectEncodingFromByteOrderMarks: true);
+                text = reader.ReadToEnd();
+            }
+            catch (Exception ex) when (ex is IOException or UnauthorizedAccessException or InvalidDataException)
+            {
+                throw new UserFacingException($"{input.Name}: cannot read the corpus file ({ex.Message})");
+            }
             if (text.Length > 0 && text[0] == '\uFEFF') text = text[1..];
-            if (string.IsNullOrWhiteSpace(text)) context.Warn($"{f}: the corpus file is empty");
-            docs.Add(new CorpusDocument(f, text));
+            if (string.IsNullOrWhiteSpace(text)) context.Warn($"{input.Name}: the corpus file is empty");
+            docs.Add(new CorpusDocument(input.Name, text));
         }
         return docs;
     }

@@ -153,7 +153,7 @@ public class AuditCommandTests
     {
         var (context, _, _) = AuditFixtures.Context();
         var ex = Assert.Throws<UserFacingException>(() => AuditInputs.ReadCorpus(["/no/corpus.txt"], context));
-        Assert.Contains("/no/corpus.txt: corpus file not found", ex.Message);
+        Assert.Contains("/no/corpus.txt: corpus file or folder not found", ex.Message);
     }
 
     [Fact]
@@ -248,5 +248,35 @@ public class AuditOutputFolderTests
         AuditCommand.WriteOutputs(report, again, context);
         AuditCommand.WriteOutputs(report, again, context);
         Assert.Equal(AuditCommand.OutputFiles.Order(StringComparer.Ordinal), Directory.GetFiles(again).Select(Path.GetFileName).Order(StringComparer.Ordinal));
+    }
+}
+
+public class AuditCorpusInputTests
+{
+    [Fact]
+    public void ReadCorpus_FolderWithTextAndGzip_ReadsBothInPathOrder()
+    {
+        var (context, _, _) = AuditFixtures.Context();
+        string dir = Path.Combine(AuditFixtures.TempDir(), "corpus");
+        Directory.CreateDirectory(Path.Combine(dir, "sub"));
+        File.WriteAllText(Path.Combine(dir, "a.txt"), "\uFEFFthe bank loan");
+        using (var f = File.Create(Path.Combine(dir, "sub", "b.txt.gz")))
+        using (var gz = new System.IO.Compression.GZipStream(f, System.IO.Compression.CompressionLevel.Fastest))
+            gz.Write("the river bank"u8);
+        File.WriteAllText(Path.Combine(dir, "skip.csv"), "not a corpus file");
+        var docs = AuditInputs.ReadCorpus([dir], context);
+        Assert.Equal(["the bank loan", "the river bank"], docs.Select(d => d.Text));
+        Assert.EndsWith("b.txt.gz", docs[1].Source);
+    }
+
+    [Fact]
+    public void ReadCorpus_MissingOrStdin_ClearErrors()
+    {
+        var (context, _, _) = AuditFixtures.Context();
+        var e = Assert.Throws<UserFacingException>(() => AuditInputs.ReadCorpus(["/nonexistent/corpus.txt"], context));
+        Assert.Contains("/nonexistent/corpus.txt", e.Message);
+        Assert.Equal(ExitCodes.BadInput, e.ExitCode);
+        e = Assert.Throws<UserFacingException>(() => AuditInputs.ReadCorpus(["-"], context));
+        Assert.Equal(ExitCodes.Usage, e.ExitCode);
     }
 }
