@@ -172,7 +172,7 @@ public static class CountsFile
 
         public void Report(Action<string>? warn)
         {
-            if (_count > 0) warn?.Invoke($"{path}: {_count.ToString(CultureInfo.InvariantCulture)} repeated words; keeping each word's first count (first: {_first})");
+            if (_count > 0) warn?.Invoke($"{path}: {_count.ToString(CultureInfo.InvariantCulture)} repeated word{(_count == 1 ? "" : "s")}; keeping each word's first count (first: {_first})");
         }
     }
 }

@@ -105,7 +105,7 @@ public static class HtmlReport
         if (r.Composed) w.Write(" <span class=\"badge plain\">composed</span>");
         w.Write("</h3><p class=\"facts\">");
         var facts = new List<string> { $"ambiguity {Fmt.N(r.Ambiguity)}", $"{r.Senses.Count} sense(s)" };
-        if (r.PeerRank is double pr) facts.Add($"more mixed than {Fmt.I((long)Math.Round(100 * pr))}% of words of its frequency");
+        if (r.PeerRank is double pr) facts.Add($"more mixed than {Fmt.I((long)Math.Round(100 * pr))}% of {(r.Count is null ? "the sampled words" : "words of its frequency")}");
         if (r.Count is long c) facts.Add($"{Fmt.I(c)} occurrences in the training corpus");
         if (report.Corpus is not null && r.Verdict != Verdict.Unknown) facts.Add($"{Fmt.I(r.Occurrences)} in the audit corpus");
         if (r.Dropped.Count > 0) facts.Add("left out: " + string.Join(", ", r.Dropped.Select(d => $"atom {d.Atom} ({d.Reason})")));

@@ -8,7 +8,7 @@ public static class TextReport
     public static void WriteTerm(SenseModel model, TermSenses r, TextWriter w)
     {
         w.WriteLine($"{r.Query.Term}: {VerdictNames.Of(r.Verdict)}" + (r.Senses.Count > 0 ? $", {r.Senses.Count} sense(s), ambiguity {Fmt.N(r.Ambiguity)}" : "")
-            + (r.PeerRank is double pr ? $", more mixed than {Fmt.I((long)Math.Round(100 * pr))}% of words of its frequency" : "")
+            + (r.PeerRank is double pr ? $", more mixed than {Fmt.I((long)Math.Round(100 * pr))}% of {(r.Count is null ? "the sampled words" : "words of its frequency")}" : "")
             + (r.Composed ? " (composed from its words)" : "") + (r.Count is long c ? $", count {Fmt.I(c)}" : ""));
         foreach (var n in r.Notes.Concat(r.CorpusNotes)) w.WriteLine($"  note: {n}");
         if (r.Verdict == Verdict.Unknown)

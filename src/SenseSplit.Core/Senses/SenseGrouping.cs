@@ -99,7 +99,7 @@ internal static class SenseGrouping
         {
             demoted = true;
             notes.Add(string.Create(System.Globalization.CultureInfo.InvariantCulture,
-                $"its atoms form {codeGroups.Count} groups, but it is more mixed than only {100 * pr:0}% of words of about its frequency (a split needs {100 * opt.SeveralPeerRank:0}%): reported as one sense"));
+                $"its atoms form {codeGroups.Count} groups, but it is more mixed than only {100 * pr:0}% of {(count is null ? "the sampled vocabulary words" : "words of about its frequency")} (a split needs {100 * opt.SeveralPeerRank:0}%): reported as one sense"));
             var all = Enumerable.Range(0, kept).ToArray();
             codeGroups = [(all, all.Sum(i => (double)plan.Weights[i]))];
         }
