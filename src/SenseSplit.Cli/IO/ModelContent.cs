@@ -103,6 +103,7 @@ public static class ModelFolder
             throw new UserFacingException($"{directory}: is a file; the model output must be a folder", ExitCodes.WriteFailed);
         if (Directory.Exists(full) && Directory.EnumerateFileSystemEntries(full).Any() && !File.Exists(Path.Combine(full, ManifestFile)))
             throw new UserFacingException($"{directory}: exists and is not a model folder (no {ManifestFile}); refusing to replace it", ExitCodes.WriteFailed);
+        OutputProbe.EnsureParentWritable(directory);
     }
 
     /// <summary>Writes a model folder atomically (temporary folder beside <paramref name="directory"/>, then rename).</summary>

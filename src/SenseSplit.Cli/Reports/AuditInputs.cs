@@ -93,11 +93,12 @@ public static class AuditInputs
         var full = Path.GetFullPath(directory);
         if (File.Exists(full))
             throw new UserFacingException($"{directory}: is a file; the output must be a folder", ExitCodes.WriteFailed);
-        if (!Directory.Exists(full)) return;
+        if (!Directory.Exists(full)) { OutputProbe.EnsureParentWritable(directory); return; }
         var foreign = Directory.EnumerateFileSystemEntries(full).Select(Path.GetFileName)
             .Where(n => n is not null && !ownFiles.Contains(n, StringComparer.Ordinal)).Order(StringComparer.Ordinal).Take(3).ToArray();
         if (foreign.Length > 0)
             throw new UserFacingException($"{directory}: exists and holds other files ({string.Join(", ", foreign)}); refusing to replace it (choose a new or empty folder, or one written by this command)", ExitCodes.WriteFailed);
+        OutputProbe.EnsureParentWritable(directory);
     }
 
     /// <summary>Writes a folder atomically: <paramref name="write"/> fills a temporary folder beside
