@@ -124,6 +124,50 @@ public class CooccurrenceCounterTests
         }
     }
 
+    [Theory]
+    [InlineData(1, false)]
+    [InlineData(2, true)]
+    [InlineData(3, false)]
+    public void Append_Spans_SameAsValueByValue(int threads, bool acrossLines)
+    {
+        var rng = new Random(30 + threads);
+        int words = 4000;
+        var stream = RandomStream(rng, 600_000, words);
+        var options = new CooccurrenceOptions { Threads = threads, WindowAcrossLines = acrossLines };
+        var one = Count(stream, words, options);
+        using var counter = new CooccurrenceCounter(words, options);
+        // Uneven span lengths, so that spans end inside blocks and next to marks.
+        for (int at = 0; at < stream.Length;)
+        {
+            int n = Math.Min(stream.Length - at, rng.Next(1, 70_000));
+            counter.Append(stream.AsSpan(at, n));
+            at += n;
+        }
+        var bulk = counter.Complete();
+        AssertIdentical(one, bulk);
+        Assert.Equal(one.WordCounts, bulk.WordCounts);
+        Assert.Equal(one.Tokens, bulk.Tokens);
+    }
+
+    [Fact]
+    public void Append_BadValue_Throws()
+    {
+        using var counter = new CooccurrenceCounter(3, new CooccurrenceOptions { Threads = 1 });
+        Assert.Throws<ArgumentOutOfRangeException>(() => counter.Append([0, 1, 3]));
+        Assert.Throws<ArgumentOutOfRangeException>(() => counter.Append([0, -4]));
+    }
+
+    [Fact]
+    public void Complete_WordCounts_MatchStream()
+    {
+        var rng = new Random(17);
+        var stream = RandomStream(rng, 300_000, 2500);
+        var counts = Count(stream, 2500, new CooccurrenceOptions { Threads = 2 });
+        var expected = new long[2500];
+        foreach (int v in stream) if (v >= 0) expected[v]++;
+        Assert.Equal(expected, counts.WordCounts);
+    }
+
     [Fact]
     public void Id_OutOfRange_Throws()
     {
