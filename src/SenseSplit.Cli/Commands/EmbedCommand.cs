@@ -7,6 +7,7 @@ using SenseSplit.Cli.IO;
 using SenseSplit.Core.Cooccurrence;
 using SenseSplit.Core.Linalg;
 using SenseSplit.Core.Text;
+using SenseSplit.Core.Vectors;
 
 namespace SenseSplit.Cli.Commands;
 
@@ -327,11 +328,17 @@ public static class EmbedCommand
             try
             {
                 Directory.CreateDirectory(staging);
-                EmbedWriters.WriteVectors(Path.Combine(staging, "vectors.txt"), vocab.Words, vectors, dims);
-                EmbedWriters.WriteCounts(Path.Combine(staging, "counts.tsv"), vocab.Words, wordCounts);
-                EmbedWriters.WriteNpy(Path.Combine(staging, "basis.npy"), svd.V, vocab.Count, dims);
-                EmbedWriters.WriteNpy(Path.Combine(staging, "singular-values.npy"), svd.SingularValues, dims);
-                EmbedWriters.WriteNpy(Path.Combine(staging, "context-counts.npy"), ppmi.ContextCounts, vocab.Count);
+                // The staging folder as a whole is renamed into place, so the files need no temporary names of their own.
+                void WriteFile(string name, Action<Stream> write)
+                {
+                    using var stream = new FileStream(Path.Combine(staging, name), FileMode.CreateNew, FileAccess.Write, FileShare.None, 1 << 20);
+                    write(stream);
+                }
+                WriteFile("vectors.txt", f => VectorFile.WriteText(f, new WordVectors(vocab.Words, vectors, dims), header: true));
+                WriteFile("counts.tsv", f => CountsFile.Write(f, vocab.Words, wordCounts, header: true));
+                WriteFile("basis.npy", f => NpyFile.WriteMatrix<float>(f, svd.V, vocab.Count, dims));
+                WriteFile("singular-values.npy", f => NpyFile.WriteVector<double>(f, svd.SingularValues));
+                WriteFile("context-counts.npy", f => NpyFile.WriteVector<double>(f, ppmi.ContextCounts));
                 timings["write"] = swWrite.Elapsed.TotalSeconds;
                 timings["total"] = total.Elapsed.TotalSeconds;
                 var manifest = new EmbedManifest
