@@ -168,6 +168,35 @@ public class CooccurrenceCounterTests
         Assert.Equal(expected, counts.WordCounts);
     }
 
+    [Theory]
+    [InlineData(false)]
+    [InlineData(true)]
+    public void TextPipeline_LinesAndBlankLines_BoundWindows(bool acrossLines)
+    {
+        // Tokenizer → word table → ids → counter, as embed runs it. A line end bounds a window unless windows run
+        // across lines; a blank line always does (docs/tokenizer.md, "Lines, paragraphs and windows").
+        string text = "a b\r\nc d\n\ne f\n";
+        var table = new SenseSplit.Core.Text.WordTable();
+        var scanner = new SenseSplit.Core.Text.TokenScanner(new SenseSplit.Core.Text.TokenizerOptions());
+        var vocabularyPass = new SenseSplit.Core.Text.VocabularyCounter(table);
+        scanner.Scan(text, true, vocabularyPass);
+        scanner.EndDocument(vocabularyPass);
+        var vocab = SenseSplit.Core.Text.Vocabulary.Select(table, 1, 10);
+        using var counter = new CooccurrenceCounter(vocab.Count, new CooccurrenceOptions { Window = 5, WindowAcrossLines = acrossLines, Threads = 2 });
+        var mapper = new SenseSplit.Core.Text.TokenIdMapper(table, vocab.TableIdToWordId, null, counter);
+        scanner.Scan(text, true, mapper);
+        scanner.EndDocument(mapper);
+        var counts = counter.Complete();
+        double X(string p, string q) => counts.Get(Array.IndexOf(vocab.Words, p), Array.IndexOf(vocab.Words, q));
+        Assert.Equal(1.0, X("a", "b"));
+        Assert.Equal(1.0, X("c", "d"));
+        Assert.Equal(1.0, X("e", "f"));
+        Assert.Equal(0.0, X("d", "e")); // the blank line
+        Assert.Equal(0.0, X("b", "e"));
+        Assert.Equal(acrossLines ? 1.0 : 0.0, X("b", "c"));
+        Assert.Equal(acrossLines ? 1.0 / 3 : 0.0, X("a", "d"), 6); // stored as float
+    }
+
     [Fact]
     public void Id_OutOfRange_Throws()
     {
