@@ -14,9 +14,11 @@ namespace SenseSplit.Bench.Suites;
 /// <summary>
 /// The embed pipeline stage by stage on a corpus of at least 20 M tokens built from GCIDE (Debian dict-gcide: markup
 /// stripped, lines repeated in shuffled order until the target size): decode, tokenize, vocabulary pass, counting pass,
-/// merge, PPMI, SVD (d = 300) for each vocabulary size, peak memory. Baseline in the same run: a naive tokenizer
-/// (Regex split + ToLowerInvariant + Dictionary&lt;string,long&gt;).
-/// Usage: embed [--tokens 20000000] [--words 30000,100000] [--corpus FILE] [--threads 2] [--skip-svd]
+/// merge, PPMI, SVD (d = 300) for each vocabulary size, peak memory. References in the same run: a naive tokenizer
+/// (Regex split + ToLowerInvariant + Dictionary&lt;string,long&gt;) for pass 1, and for the counting pass the counter of
+/// commit 909f2ad (<see cref="RowPartitionedCounter"/>), interleaved with the current one, best of two rounds each, with
+/// a bit-for-bit comparison of their counts.
+/// Usage: embed [--tokens 20000000] [--words 30000,100000] [--corpus FILE] [--threads 2] [--skip-svd] [--count-only]
 /// </summary>
 public sealed class EmbedBench : IBenchSuite
 {

@@ -303,9 +303,9 @@ public static class EmbedCommand
 
             // The SVD's arrays (RandomizedSvd: two work buffers of V × l floats, then U and V of V × d): outside --memory.
             long svdBytes = SvdBytes(vocab.Count, dims, s.Oversample);
-            string svdNeed = string.Create(C, $"the SVD needs about {svdBytes / 1e6:F0} MB (4·V·(2·(d + oversample) + 2·d) bytes, V = {vocab.Count}, d = {dims}) besides the PPMI matrix ({ppmi.Matrix.NonZeros * 16L / 1e6:F0} MB)");
-            if (svdBytes > s.MemoryBytes) context.Warn($"{svdNeed}, more than --memory ({s.MemoryBytes / 1e6:F0} MB); lower --max-words or --dim to need less");
-            else err.WriteLine($"SVD: {svdNeed}");
+            string svdNeed = string.Create(C, $"about {svdBytes / 1e6:F0} MB (4·V·(2·(d + oversample) + 2·d) bytes, V = {vocab.Count}, d = {dims}) besides the PPMI matrix ({ppmi.Matrix.NonZeros * 16L / 1e6:F0} MB)");
+            if (svdBytes > s.MemoryBytes) context.Warn(string.Create(C, $"the SVD needs {svdNeed}, more than --memory ({s.MemoryBytes / 1e6:F0} MB); lower --max-words or --dim to need less"));
+            else err.WriteLine($"SVD: needs {svdNeed}");
             var swSvd = Stopwatch.StartNew();
             var svd = RandomizedSvd.Compute(ppmi.Matrix, dims, new RandomizedSvdOptions
             {
