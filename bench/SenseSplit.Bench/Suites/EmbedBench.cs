@@ -16,9 +16,9 @@ namespace SenseSplit.Bench.Suites;
 /// stripped, lines repeated in shuffled order until the target size): decode, tokenize, vocabulary pass, counting pass,
 /// merge, PPMI, SVD (d = 300) for each vocabulary size, peak memory. References in the same run: a naive tokenizer
 /// (Regex split + ToLowerInvariant + Dictionary&lt;string,long&gt;) for pass 1, and for the counting pass the counter of
-/// commit 909f2ad (<see cref="RowPartitionedCounter"/>), interleaved with the current one, best of two rounds each, with
+/// commit 909f2ad (<see cref="RowPartitionedCounter"/>), interleaved with the current one, best of the rounds, with
 /// a bit-for-bit comparison of their counts.
-/// Usage: embed [--tokens 20000000] [--words 30000,100000] [--corpus FILE] [--threads 2] [--skip-svd] [--count-only]
+/// Usage: embed [--tokens 20000000] [--words 30000,100000] [--corpus FILE] [--threads 2] [--rounds 2] [--skip-svd] [--count-only]
 /// </summary>
 public sealed class EmbedBench : IBenchSuite
 {
@@ -33,6 +33,7 @@ public sealed class EmbedBench : IBenchSuite
         string? corpusPath = null;
         int threads = 0;
         bool skipSvd = false, countOnly = false;
+        int rounds = 2;
         for (int i = 0; i < args.Length; i++)
         {
             switch (args[i])
@@ -43,6 +44,7 @@ public sealed class EmbedBench : IBenchSuite
                 case "--threads": threads = int.Parse(args[++i], C); break;
                 case "--skip-svd": skipSvd = true; break;
                 case "--count-only": countOnly = true; break;
+                case "--rounds": rounds = int.Parse(args[++i], C); break;
                 case "--svd-parts": return SvdParts(threads <= 0 ? Environment.ProcessorCount : threads);
                 default: Console.Error.WriteLine($"unknown option {args[i]}"); return 2;
             }
@@ -96,15 +98,15 @@ public sealed class EmbedBench : IBenchSuite
         {
             GC.Collect();
             var vocab = Vocabulary.Select(table, 5, words);
-            // Counting, before and after in the same run, interleaved, best of two rounds each: the row-partitioned
+            // Counting, before and after in the same run, interleaved, best of the rounds: the row-partitioned
             // counter of commit 909f2ad fed value by value (as the CLI fed it), and the position-partitioned counter fed
-            // through TokenIdMapper.TableIds in 1 MB chunks (as the CLI replays the id file).
+            // through TokenIdMapper.TableIds in 1 MB chunks (as the CLI replays the id file). --rounds sets the rounds.
             double bestBefore = double.MaxValue, bestAfter = double.MaxValue, bestBeforeCpu = 0, bestAfterCpu = 0;
             CooccurrenceCounts? counts = null;
             CooccurrenceCounts? reference = null;
             int spilled = 0;
             double mergeSeconds = 0;
-            for (int round = 0; round < 2; round++)
+            for (int round = 0; round < rounds; round++)
             {
                 {
                     GC.Collect();

@@ -256,12 +256,14 @@ public sealed class CooccurrenceCounter : IIdSpanSink, IDisposable
         public int Pending;
     }
 
-    /// <summary>Packed pairs (distance in the top 5 bits) handed from the worker that found them to their row's owner.</summary>
+    /// <summary>One full staging bucket of packed pairs (distance in the top 5 bits), handed from the worker that found
+    /// them to their row's owner, which applies it to its map of that bucket.</summary>
     private sealed class PairChunk
     {
-        public const int Capacity = 4096;
+        public const int Capacity = 1024;
         public readonly ulong[] Pairs = new ulong[Capacity];
         public int Count;
+        public int Bucket;
     }
 
     private sealed class Worker
@@ -273,16 +275,15 @@ public sealed class CooccurrenceCounter : IIdSpanSink, IDisposable
         private long[] _dense;
         private readonly long[] _triangleBase;
         private readonly long[] _wordCounts;
-        // Pairs for the hash maps are first appended to one of 64 buckets (by hash), then applied to that bucket's
-        // own small map in a burst: the random accesses stay inside a map of ~1/64 of the size, mostly in cache.
+        // Pairs for the hash maps are first appended to one of 64 buckets (by hash) of their row's owner, then applied
+        // to that bucket's own small map in a burst: the random accesses stay inside a map of ~1/64 of the size, mostly
+        // in cache. A full bucket of another owner is copied into a chunk and handed to that owner's inbox; chunks come
+        // back through the shared pool once applied.
         private const int Buckets = 64;
-        private const int BucketCapacity = 1024;
+        private const int BucketCapacity = PairChunk.Capacity;
         private readonly PairHashMap[] _maps;
-        private readonly ulong[] _bucketKeys = new ulong[Buckets * BucketCapacity];
-        private readonly int[] _bucketFill = new int[Buckets];
-        // Pairs of rows owned by other workers: one chunk being filled per other worker; full chunks go to the owner's
-        // inbox, and come back through the shared pool once applied.
-        private readonly PairChunk?[] _outbox;
+        private readonly ulong[] _bucketKeys;
+        private readonly int[] _bucketFill;
         private readonly ConcurrentQueue<PairChunk> _inbox = new();
         private PairEntry[] _sortScratch = [];
 
@@ -297,7 +298,8 @@ public sealed class CooccurrenceCounter : IIdSpanSink, IDisposable
             _wordCounts = new long[owner._words];
             _maps = new PairHashMap[Buckets];
             for (int b = 0; b < Buckets; b++) _maps[b] = new PairHashMap(1024, owner._mapBytes / Buckets);
-            _outbox = new PairChunk?[owner._threads];
+            _bucketKeys = new ulong[owner._threads * Buckets * BucketCapacity];
+            _bucketFill = new int[owner._threads * Buckets];
             _thread = new Thread(Loop) { IsBackground = true, Name = $"cooccurrence-{index}" };
         }
 
@@ -307,7 +309,7 @@ public sealed class CooccurrenceCounter : IIdSpanSink, IDisposable
         public long[] WordCounts => _wordCounts;
         public Exception? Failure { get; private set; }
         public long Bytes => _dense.LongLength * 8 + _maps.Sum(m => m?.Bytes ?? 0) + _sortScratch.LongLength * 16
-            + (long)(_inbox.Count + _owner._threads) * PairChunk.Capacity * 8;
+            + (long)(_bucketKeys.Length + _inbox.Count * PairChunk.Capacity) * 8;
 
         public void Start() => _thread.Start();
         public void Enqueue(Block b) => _queue.Add(b);
@@ -329,14 +331,18 @@ public sealed class CooccurrenceCounter : IIdSpanSink, IDisposable
                 catch (Exception ex) { Failure = ex; }
                 finally { _owner.Release(block); }
             }
-            // Hand over what is left for the other owners (they apply it in Merge, after every worker has stopped).
+            // Hand over what is staged for the other owners (they apply it in Merge, after every worker has stopped).
             try
             {
-                for (int o = 0; o < _outbox.Length; o++)
+                for (int o = 0; o < _owner._threads; o++)
                 {
-                    var chunk = _outbox[o];
-                    if (chunk is { Count: > 0 }) _owner._workers[o]._inbox.Enqueue(chunk);
-                    _outbox[o] = null;
+                    if (o == _index) continue;
+                    for (int b = 0; b < Buckets; b++)
+                    {
+                        int fill = _bucketFill[o * Buckets + b];
+                        if (fill > 0) HandOver(o, b, fill);
+                        _bucketFill[o * Buckets + b] = 0;
+                    }
                 }
             }
             catch (Exception ex) { Failure ??= ex; }
@@ -352,7 +358,6 @@ public sealed class CooccurrenceCounter : IIdSpanSink, IDisposable
             int window = _owner._window;
             int cutoff = Cutoff;
             int bits = _owner._idBits;
-            int me = _index;
             // Row owner r mod T; a mask when T is a power of two (the usual case), a division otherwise (map pairs only).
             int ownerMask = (threads & (threads - 1)) == 0 ? threads - 1 : -1;
             // The hot loop indexes without bounds checks: positions stay in [0, Length) (the look-back stops at 0),
@@ -381,49 +386,50 @@ public sealed class CooccurrenceCounter : IIdSpanSink, IDisposable
                     }
                     // Distance in the top 5 bits, then (row << bits) | column (2·bits ≤ 48).
                     ulong packed = ((ulong)(i - j) << 59) | ((ulong)(uint)r << bits) | (uint)c;
-                    int owner = ownerMask >= 0 ? r & ownerMask : r % threads;
-                    if (owner == me) Stage(packed);
-                    else Route(owner, packed);
+                    Stage(packed, ownerMask >= 0 ? r & ownerMask : r % threads);
                 }
             }
         }
 
-        private void Route(int owner, ulong packed)
+        // Not inlined: the dense path of Count keeps its references in registers when this larger path is a call.
+        [MethodImpl(MethodImplOptions.NoInlining)]
+        private void Stage(ulong packed, int owner)
         {
-            var chunk = _outbox[owner] ??= _owner.RentChunk();
-            chunk.Pairs[chunk.Count++] = packed;
-            if (chunk.Count == PairChunk.Capacity)
+            ulong key = packed & KeyMask;
+            int slot = owner * Buckets + (int)((key * 0x9E3779B97F4A7C15UL) >> 58);
+            int fill = _bucketFill[slot];
+            _bucketKeys[slot * BucketCapacity + fill] = packed;
+            if (++fill == BucketCapacity)
             {
-                _owner._workers[owner]._inbox.Enqueue(chunk);
-                _outbox[owner] = null;
+                if (owner == _index) ApplyBucket(slot - owner * Buckets, _bucketKeys.AsSpan(slot * BucketCapacity, fill));
+                else HandOver(owner, slot - owner * Buckets, fill);
+                fill = 0;
             }
+            _bucketFill[slot] = fill;
+        }
+
+        private void HandOver(int owner, int bucket, int fill)
+        {
+            var chunk = _owner.RentChunk();
+            _bucketKeys.AsSpan((owner * Buckets + bucket) * BucketCapacity, fill).CopyTo(chunk.Pairs);
+            chunk.Count = fill;
+            chunk.Bucket = bucket;
+            _owner._workers[owner]._inbox.Enqueue(chunk);
         }
 
         private void ApplyInbox()
         {
             while (_inbox.TryDequeue(out var chunk))
             {
-                foreach (ulong packed in chunk.Pairs.AsSpan(0, chunk.Count)) Stage(packed);
+                ApplyBucket(chunk.Bucket, chunk.Pairs.AsSpan(0, chunk.Count));
                 _owner.ReturnChunk(chunk);
             }
         }
 
-        [MethodImpl(MethodImplOptions.AggressiveInlining)]
-        private void Stage(ulong packed)
-        {
-            ulong key = packed & KeyMask;
-            int bucket = (int)((key * 0x9E3779B97F4A7C15UL) >> 58);
-            int fill = _bucketFill[bucket];
-            _bucketKeys[bucket * BucketCapacity + fill] = packed;
-            if (++fill == BucketCapacity) { ApplyBucket(bucket, fill); fill = 0; }
-            _bucketFill[bucket] = fill;
-        }
-
-        private void ApplyBucket(int bucket, int fill)
+        private void ApplyBucket(int bucket, ReadOnlySpan<ulong> keys)
         {
             var map = _maps[bucket];
             var weights = _owner._weights;
-            var keys = _bucketKeys.AsSpan(bucket * BucketCapacity, fill);
             foreach (ulong packed in keys)
             {
                 ulong key = packed & KeyMask;
@@ -476,10 +482,12 @@ public sealed class CooccurrenceCounter : IIdSpanSink, IDisposable
         public (int[] RowStart, int[] Columns, float[] Values) Merge(long[] dense, long[] triangleBase)
         {
             ApplyInbox();
+            int own = _index * Buckets;
             for (int b = 0; b < Buckets; b++)
             {
-                if (_bucketFill[b] > 0) ApplyBucket(b, _bucketFill[b]);
-                _bucketFill[b] = 0;
+                int fill = _bucketFill[own + b];
+                if (fill > 0) ApplyBucket(b, _bucketKeys.AsSpan((own + b) * BucketCapacity, fill));
+                _bucketFill[own + b] = 0;
             }
             int threads = _owner._threads;
             int words = _owner._words;
