@@ -3,6 +3,7 @@ using System.Globalization;
 using System.IO.Compression;
 using System.Text;
 using System.Text.RegularExpressions;
+using SenseSplit.Bench.Baselines;
 using SenseSplit.Cli.IO;
 using SenseSplit.Core.Cooccurrence;
 using SenseSplit.Core.Linalg;
@@ -13,9 +14,11 @@ namespace SenseSplit.Bench.Suites;
 /// <summary>
 /// The embed pipeline stage by stage on a corpus of at least 20 M tokens built from GCIDE (Debian dict-gcide: markup
 /// stripped, lines repeated in shuffled order until the target size): decode, tokenize, vocabulary pass, counting pass,
-/// merge, PPMI, SVD (d = 300) for each vocabulary size, peak memory. Baseline in the same run: a naive tokenizer
-/// (Regex split + ToLowerInvariant + Dictionary&lt;string,long&gt;).
-/// Usage: embed [--tokens 20000000] [--words 30000,100000] [--corpus FILE] [--threads 2] [--skip-svd]
+/// merge, PPMI, SVD (d = 300) for each vocabulary size, peak memory. References in the same run: a naive tokenizer
+/// (Regex split + ToLowerInvariant + Dictionary&lt;string,long&gt;) for pass 1, and for the counting pass the counter of
+/// commit 909f2ad (<see cref="RowPartitionedCounter"/>), interleaved with the current one, best of the rounds, with
+/// a bit-for-bit comparison of their counts.
+/// Usage: embed [--tokens 20000000] [--words 30000,100000] [--corpus FILE] [--threads 2] [--rounds 2] [--skip-svd] [--count-only]
 /// </summary>
 public sealed class EmbedBench : IBenchSuite
 {
@@ -30,6 +33,7 @@ public sealed class EmbedBench : IBenchSuite
         string? corpusPath = null;
         int threads = 0;
         bool skipSvd = false, countOnly = false;
+        int rounds = 2;
         for (int i = 0; i < args.Length; i++)
         {
             switch (args[i])
@@ -40,6 +44,7 @@ public sealed class EmbedBench : IBenchSuite
                 case "--threads": threads = int.Parse(args[++i], C); break;
                 case "--skip-svd": skipSvd = true; break;
                 case "--count-only": countOnly = true; break;
+                case "--rounds": rounds = int.Parse(args[++i], C); break;
                 case "--svd-parts": return SvdParts(threads <= 0 ? Environment.ProcessorCount : threads);
                 default: Console.Error.WriteLine($"unknown option {args[i]}"); return 2;
             }
@@ -86,55 +91,75 @@ public sealed class EmbedBench : IBenchSuite
         Console.WriteLine(string.Create(C, $"  CPU time {pass1Cpu:F2} s = {vocabCounter.Tokens / pass1Cpu / 1e6:F2} M tokens per CPU-second"));
         Console.WriteLine(string.Create(C, $"  ratio to baseline: {naiveSeconds / pass1:F1}x faster"));
 
-        if (countOnly)
-        {
-            var vocab = Vocabulary.Select(table, 5, vocabSizes[0]);
-            var ids = new IdRecorder();
-            var map0 = vocab.TableIdToWordId;
-            foreach (int v in recorded.Ids) ids.Ids.Add(v >= 0 && v < map0.Length ? map0[v] : v);
-            foreach (int t in new[] { 1, threads })
-            {
-                var cpu = Process.GetCurrentProcess().TotalProcessorTime;
-                sw.Restart();
-                using var counter = new CooccurrenceCounter(vocab.Count, new CooccurrenceOptions { Threads = t });
-                foreach (int v in ids.Ids) { if (v == -2) counter.LineBreak(); else counter.Id(v); }
-                var cpuFeed = Process.GetCurrentProcess().TotalProcessorTime - cpu;
-                var wallFeed = sw.Elapsed.TotalSeconds;
-                var counts = counter.Complete();
-                Console.WriteLine(string.Create(C, $"  before Complete: wall {wallFeed:F2} s, CPU {cpuFeed.TotalSeconds:F2} s"));
-                Console.WriteLine(string.Create(C, $"count-only V={vocab.Count} threads {t}: wall {sw.Elapsed.TotalSeconds:F2} s, CPU {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:F2} s, {counts.UpperNonZeros} pairs"));
-            }
-            return 0;
-        }
+        var stream = recorded.Ids.ToArray();
+        recorded.Ids.Clear();
+        recorded.Ids.TrimExcess();
         foreach (int words in vocabSizes)
         {
             GC.Collect();
             var vocab = Vocabulary.Select(table, 5, words);
-            var proc = Process.GetCurrentProcess();
-            sw.Restart();
-            var cpu0 = Process.GetCurrentProcess().TotalProcessorTime;
-            CooccurrenceCounts counts;
-            int spilled;
-            using (var counter = new CooccurrenceCounter(vocab.Count, new CooccurrenceOptions { Threads = threads }))
+            // Counting, before and after in the same run, interleaved, best of the rounds: the row-partitioned
+            // counter of commit 909f2ad fed value by value (as the CLI fed it), and the position-partitioned counter fed
+            // through TokenIdMapper.TableIds in 1 MB chunks (as the CLI replays the id file). --rounds sets the rounds.
+            double bestBefore = double.MaxValue, bestAfter = double.MaxValue, bestBeforeCpu = 0, bestAfterCpu = 0;
+            CooccurrenceCounts? counts = null;
+            CooccurrenceCounts? reference = null;
+            int spilled = 0;
+            double mergeSeconds = 0;
+            for (int round = 0; round < rounds; round++)
             {
-                var map = vocab.TableIdToWordId;
-                foreach (int v in recorded.Ids)
                 {
-                    if (v == -2) counter.LineBreak();
-                    else counter.Id(v >= 0 && v < map.Length ? map[v] : -1);
+                    GC.Collect();
+                    var cpu = Process.GetCurrentProcess().TotalProcessorTime;
+                    sw.Restart();
+                    using var old = new RowPartitionedCounter(vocab.Count, new CooccurrenceOptions { Threads = threads });
+                    var map = vocab.TableIdToWordId;
+                    foreach (int v in stream)
+                    {
+                        if (v == IdStream.LineMark) old.LineBreak();
+                        else if (v == IdStream.ParagraphMark) old.ParagraphBreak();
+                        else old.Id(v >= 0 && v < map.Length ? map[v] : -1);
+                    }
+                    var result = old.Complete();
+                    double seconds = sw.Elapsed.TotalSeconds;
+                    if (seconds < bestBefore) { bestBefore = seconds; bestBeforeCpu = (Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds; }
+                    reference ??= result;
                 }
-                double countSeconds = sw.Elapsed.TotalSeconds;
-                Report($"V={vocab.Count}: pass 2: counting from the id stream (window 5, 1/d)", counter.Tokens, countSeconds);
-                Console.WriteLine(string.Create(C, $"  CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpu0).TotalSeconds:F2} s"));
-                sw.Restart();
-                counts = counter.Complete();
-                spilled = counter.SpilledRuns;
+                {
+                    GC.Collect();
+                    var cpu = Process.GetCurrentProcess().TotalProcessorTime;
+                    sw.Restart();
+                    using var counter = new CooccurrenceCounter(vocab.Count, new CooccurrenceOptions { Threads = threads });
+                    var mapper = new TokenIdMapper(table, vocab.TableIdToWordId, null, counter);
+                    for (int at = 0; at < stream.Length; at += 1 << 18)
+                        mapper.TableIds(stream.AsSpan(at, Math.Min(1 << 18, stream.Length - at)));
+                    double feed = sw.Elapsed.TotalSeconds;
+                    var merge = Stopwatch.StartNew();
+                    var result = counter.Complete();
+                    double seconds = sw.Elapsed.TotalSeconds;
+                    if (seconds < bestAfter)
+                    {
+                        bestAfter = seconds;
+                        bestAfterCpu = (Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds;
+                        mergeSeconds = merge.Elapsed.TotalSeconds;
+                        Console.WriteLine(string.Create(C, $"  after, round {round + 1}: feed and count {feed:F2} s, merge {mergeSeconds:F2} s"));
+                    }
+                    counts ??= result;
+                    spilled = counter.SpilledRuns;
+                }
             }
-            Console.WriteLine(string.Create(C, $"V={vocab.Count}: merge {sw.Elapsed.TotalSeconds:F2} s, {counts.UpperNonZeros} pairs, {spilled} runs"));
+            long tokens = counts!.Tokens;
+            Report($"V={vocab.Count}: pass 2 before (row-partitioned counter, value by value), including merge", tokens, bestBefore);
+            Console.WriteLine(string.Create(C, $"  CPU time {bestBeforeCpu:F2} s"));
+            Report($"V={vocab.Count}: pass 2 after (position-partitioned counter, bulk), including merge", tokens, bestAfter);
+            Console.WriteLine(string.Create(C, $"  CPU time {bestAfterCpu:F2} s; merge part {mergeSeconds:F2} s"));
+            Console.WriteLine(string.Create(C, $"  speed-up after / before: {bestBefore / bestAfter:F2}x; identical counts: {Identical(reference!, counts)}"));
+            reference = null;
+            Console.WriteLine(string.Create(C, $"V={vocab.Count}: {counts.UpperNonZeros} pairs, {spilled} runs"));
+            if (countOnly) continue;
             sw.Restart();
-            var cpuPpmi = Process.GetCurrentProcess().TotalProcessorTime;
             var ppmi = Ppmi.Compute(counts, new PpmiOptions());
-            counts = null!;
+            counts = null;
             Console.WriteLine(string.Create(C, $"V={vocab.Count}: PPMI {sw.Elapsed.TotalSeconds:F2} s, {ppmi.Matrix.NonZeros} entries"));
             GC.Collect();
             if (!skipSvd)
@@ -148,6 +173,19 @@ public sealed class EmbedBench : IBenchSuite
             Console.WriteLine(string.Create(C, $"V={vocab.Count}: peak working set so far {Process.GetCurrentProcess().PeakWorkingSet64 / 1e6:F0} MB; load average {LoadAverage()}"));
         }
         return 0;
+    }
+
+    /// <summary>Same stored entries, row by row, bit for bit.</summary>
+    private static bool Identical(CooccurrenceCounts a, CooccurrenceCounts b)
+    {
+        if (a.UpperNonZeros != b.UpperNonZeros || a.Tokens != b.Tokens || !a.WordCounts.AsSpan().SequenceEqual(b.WordCounts)) return false;
+        for (int r = 0; r < a.Words; r++)
+        {
+            a.GetRow(r, out var ca, out var va);
+            b.GetRow(r, out var cb, out var vb);
+            if (!ca.SequenceEqual(cb) || !va.SequenceEqual(vb)) return false;
+        }
+        return true;
     }
 
     /// <summary>CPU and wall time of the SVD's building blocks at m = 30,000, l = 310.</summary>
@@ -201,8 +239,8 @@ public sealed class EmbedBench : IBenchSuite
     {
         public readonly List<int> Ids = new();
         public void Id(int id) => Ids.Add(id);
-        public void LineBreak() => Ids.Add(-2);
-        public void ParagraphBreak() => Ids.Add(-2);
+        public void LineBreak() => Ids.Add(IdStream.LineMark);
+        public void ParagraphBreak() => Ids.Add(IdStream.ParagraphMark);
     }
 
     private sealed class CountingSink : ITokenSink

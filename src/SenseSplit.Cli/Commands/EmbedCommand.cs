@@ -7,6 +7,7 @@ using SenseSplit.Cli.IO;
 using SenseSplit.Core.Cooccurrence;
 using SenseSplit.Core.Linalg;
 using SenseSplit.Core.Text;
+using SenseSplit.Core.Vectors;
 
 namespace SenseSplit.Cli.Commands;
 
@@ -39,7 +40,14 @@ public static class EmbedCommand
         var oversample = new Option<int>("--oversample") { Description = "Extra random directions in the SVD sketch.", DefaultValueFactory = _ => 10 };
         var powerIterations = new Option<int>("--power-iterations") { Description = "Power iterations of the randomized SVD.", DefaultValueFactory = _ => 4 };
         var eigenWeight = new Option<double>("--eigen-weight") { Description = "Word vectors are U·Σ^p; this is p.", DefaultValueFactory = _ => 0.5 };
-        var memory = new Option<string>("--memory") { Description = "Memory budget of the pair counts (e.g. 512M, 4G); past it sorted runs go to temporary files.", DefaultValueFactory = _ => "4G" };
+        var memory = new Option<string>("--memory")
+        {
+            Description = "Memory budget (e.g. 512M, 4G). A quarter bounds the word table of pass 1 (pruned by lossy counting past it, "
+                + "then the kept words are counted again), half the pair counts (sorted runs go to temporary files past it). "
+                + "Not covered: the merged counts (8 bytes per stored pair), the PPMI matrix and its transpose (16 bytes per "
+                + "positive entry) and the SVD's arrays, 4·V·(2·(dim + oversample) + 2·dim) bytes for V words.",
+            DefaultValueFactory = _ => "4G",
+        };
         var tempDir = new Option<string?>("--temp-dir") { Description = "Folder for temporary files (default: the system's)." };
         var threads = new Option<int>("--threads") { Description = "Worker threads (0 = all cores). Results do not depend on it.", DefaultValueFactory = _ => 0 };
         var seed = new Option<int>("--seed") { Description = "Seed of the randomized SVD.", DefaultValueFactory = _ => 1 };
@@ -110,6 +118,18 @@ public static class EmbedCommand
         public int Seed { get; init; } = 1;
     }
 
+    /// <summary>The pass-1 word table's share of the memory budget: a quarter (the pair maps get half, see
+    /// <see cref="CooccurrenceOptions.MemoryBytes"/>; the table is still held during the counting pass).</summary>
+    internal static long TableBudget(long memoryBytes) => memoryBytes / 4;
+
+    /// <summary>Bytes of the randomized SVD's arrays for V words, d dimensions and oversampling p: two work buffers of
+    /// V × min(d + p, V) floats and the factors U and V of V × d floats (<see cref="RandomizedSvd"/>).</summary>
+    internal static long SvdBytes(int words, int dims, int oversample)
+    {
+        long l = Math.Min((long)dims + oversample, words);
+        return 4L * words * (2 * l + 2L * dims);
+    }
+
     /// <summary>"4G", "512M", "64K" or a byte count.</summary>
     internal static long ParseSize(string text, string option)
     {
@@ -169,13 +189,37 @@ public static class EmbedCommand
             PhraseSet? phraseSet = null;
             if (s.PhraseList is not null) phraseSet = LoadPhraseList(s.PhraseList, table, tokenizer, context);
             using var spool = new CorpusIdSpool(Path.Combine(tempRoot, "ids.bin"));
-            var counter1 = new VocabularyCounter(table, phraseSet is null ? null : new PhraseJoiner(phraseSet), spool);
+            var counter1 = new VocabularyCounter(table, phraseSet is null ? null : new PhraseJoiner(phraseSet), spool, TableBudget(s.MemoryBytes));
             var scanner = new TokenScanner(tokenizer);
             var hashes = ReadAll(corpus, reader, scanner, counter1, err, "pass 1 (vocabulary)", () => counter1.Tokens, totalBytes, timings, "vocabulary");
             long invalidBytes = reader.InvalidBytes;
             spool.Close();
             if (counter1.Tokens == 0)
                 throw new UserFacingException($"empty corpus: no tokens in {string.Join(", ", corpus.Select(c => c.Name))}");
+            // Later passes replay the id file, or read the text again when pruning made the ids in it stale.
+            void Feed(TokenIdMapper mapper, string pass, Func<long> tokens, string? timingName)
+            {
+                if (!counter1.Pruned)
+                {
+                    Replay(spool, mapper, err, pass + ", replaying token ids", tokens, timings, timingName);
+                    return;
+                }
+                var again = ReadAll(corpus, reader, new TokenScanner(tokenizer), mapper, err, pass + ", reading the text again", tokens, totalBytes, timings, timingName);
+                for (int i = 0; i < corpus.Count; i++)
+                    if (again[i] != hashes[i]) throw new UserFacingException($"input {corpus[i].Name} changed while it was being read (SHA-256 differs between passes)");
+            }
+
+            // After pruning, the counts of the words left are lower bounds: count them again, exactly (lossy counting keeps
+            // every word seen more than T times, so the vocabulary is exact when min count and the max-words cut exceed T).
+            if (counter1.Pruned)
+            {
+                table.ResetCounts();
+                var recount = new TableRecount(table);
+                var identity = new int[table.Count];
+                for (int i = 0; i < identity.Length; i++) identity[i] = i;
+                Feed(new TokenIdMapper(table, identity, phraseSet is null ? null : new PhraseJoiner(phraseSet), recount),
+                    "pass 1b (exact counts of the words left)", () => recount.Tokens, "recount");
+            }
 
             // Optional pass: collocations by NPMI.
             if (s.Phrases)
@@ -184,7 +228,7 @@ public static class EmbedCommand
                 var candidates = Vocabulary.Select(table, s.MinCount, s.MaxWords);
                 var bigrams = new BigramCounter();
                 var mapper = new TokenIdMapper(table, candidates.TableIdToWordId, null, bigrams);
-                Replay(spool, mapper, err, "pass 2 (phrases, replaying token ids)", () => bigrams.Bigrams, null, null);
+                Feed(mapper, "pass 2 (phrases)", () => bigrams.Bigrams, null);
                 var chosen = PhraseScorer.Select(bigrams.Pairs(), w => candidates.Counts[w], counter1.Tokens, bigrams.Bigrams, s.PhraseMinCount, s.PhraseThreshold);
                 phraseSet = new PhraseSet();
                 var ids = new int[2];
@@ -210,13 +254,21 @@ public static class EmbedCommand
                 throw new UserFacingException($"vocabulary is empty: no word of {string.Join(", ", corpus.Select(c => c.Name))} occurs at least --min-count {s.MinCount} times (the most frequent occurs {best} times)");
             }
             if (vocab.Count < 2) throw new UserFacingException($"vocabulary has a single word ('{vocab.Words[0]}'): nothing to embed; lower --min-count");
+            if (counter1.Pruned)
+            {
+                long t = table.PruneThreshold;
+                bool exact = s.MinCount > t && (vocab.Count < s.MaxWords || vocab.Counts[^1] > t);
+                string what = string.Create(C, $"the word table reached its share of --memory ({TableBudget(s.MemoryBytes) / 1e6:F0} MB) and was pruned {table.Prunings} times (lossy counting; every word seen more than {t} times was kept)");
+                if (exact) err.WriteLine($"note: {what}; the words left were counted again, so the vocabulary is the same as without pruning");
+                else context.Warn(string.Create(C, $"{what}; words seen at most {t} times may be missing, so the vocabulary may differ from a run with more memory (raise --memory, or --min-count above {t})"));
+            }
             int dims = s.Dimensions;
             if (dims > vocab.Count)
             {
                 context.Warn($"--dim {dims} exceeds the vocabulary ({vocab.Count} words); using {vocab.Count} dimensions");
                 dims = vocab.Count;
             }
-            err.WriteLine(string.Create(C, $"vocabulary: {vocab.Count} words (of {table.Count} distinct tokens; min count {s.MinCount}, max words {s.MaxWords})"));
+            err.WriteLine(string.Create(C, $"vocabulary: {vocab.Count} words (of {table.Live} distinct tokens{(counter1.Pruned ? " left after pruning" : "")}; min count {s.MinCount}, max words {s.MaxWords})"));
 
             // Counting pass.
             CooccurrenceCounts counts;
@@ -228,7 +280,7 @@ public static class EmbedCommand
                     Window = s.Window, WindowAcrossLines = s.WindowAcrossLines, Threads = threads, MemoryBytes = s.MemoryBytes,
                 }, store);
                 var mapper = new TokenIdMapper(table, vocab.TableIdToWordId, phraseSet is null ? null : new PhraseJoiner(phraseSet), counter);
-                Replay(spool, mapper, err, "pass " + (s.Phrases ? "3" : "2") + " (co-occurrences, replaying token ids)", () => counter.Tokens, timings, "counting");
+                Feed(mapper, "pass " + (s.Phrases ? "3" : "2") + " (co-occurrences)", () => counter.Tokens, "counting");
                 var sw = Stopwatch.StartNew();
                 counts = counter.Complete();
                 spilled = counter.SpilledRuns;
@@ -249,6 +301,11 @@ public static class EmbedCommand
             err.WriteLine(string.Create(C, $"PPMI: {ppmi.Matrix.NonZeros} positive entries in {swPpmi.Elapsed.TotalSeconds:F1} s"));
             if (ppmi.Matrix.NonZeros == 0) throw new UserFacingException("no word pair has positive PMI: the corpus is too small or too uniform to embed");
 
+            // The SVD's arrays (RandomizedSvd: two work buffers of V × l floats, then U and V of V × d): outside --memory.
+            long svdBytes = SvdBytes(vocab.Count, dims, s.Oversample);
+            string svdNeed = string.Create(C, $"about {svdBytes / 1e6:F0} MB (4·V·(2·(d + oversample) + 2·d) bytes, V = {vocab.Count}, d = {dims}) besides the PPMI matrix ({ppmi.Matrix.NonZeros * 16L / 1e6:F0} MB)");
+            if (svdBytes > s.MemoryBytes) context.Warn(string.Create(C, $"the SVD needs {svdNeed}, more than --memory ({s.MemoryBytes / 1e6:F0} MB); lower --max-words or --dim to need less"));
+            else err.WriteLine($"SVD: needs {svdNeed}");
             var swSvd = Stopwatch.StartNew();
             var svd = RandomizedSvd.Compute(ppmi.Matrix, dims, new RandomizedSvdOptions
             {
@@ -271,11 +328,17 @@ public static class EmbedCommand
             try
             {
                 Directory.CreateDirectory(staging);
-                EmbedWriters.WriteVectors(Path.Combine(staging, "vectors.txt"), vocab.Words, vectors, dims);
-                EmbedWriters.WriteCounts(Path.Combine(staging, "counts.tsv"), vocab.Words, wordCounts);
-                EmbedWriters.WriteNpy(Path.Combine(staging, "basis.npy"), svd.V, vocab.Count, dims);
-                EmbedWriters.WriteNpy(Path.Combine(staging, "singular-values.npy"), svd.SingularValues, dims);
-                EmbedWriters.WriteNpy(Path.Combine(staging, "context-counts.npy"), ppmi.ContextCounts, vocab.Count);
+                // The staging folder as a whole is renamed into place, so the files need no temporary names of their own.
+                void WriteFile(string name, Action<Stream> write)
+                {
+                    using var stream = new FileStream(Path.Combine(staging, name), FileMode.CreateNew, FileAccess.Write, FileShare.None, 1 << 20);
+                    write(stream);
+                }
+                WriteFile("vectors.txt", f => VectorFile.WriteText(f, new WordVectors(vocab.Words, vectors, dims), header: true));
+                WriteFile("counts.tsv", f => CountsFile.Write(f, vocab.Words, wordCounts, header: true));
+                WriteFile("basis.npy", f => NpyFile.WriteMatrix<float>(f, svd.V, vocab.Count, dims));
+                WriteFile("singular-values.npy", f => NpyFile.WriteVector<double>(f, svd.SingularValues));
+                WriteFile("context-counts.npy", f => NpyFile.WriteVector<double>(f, ppmi.ContextCounts));
                 timings["write"] = swWrite.Elapsed.TotalSeconds;
                 timings["total"] = total.Elapsed.TotalSeconds;
                 var manifest = new EmbedManifest
@@ -285,7 +348,9 @@ public static class EmbedCommand
                     Tokens = countedTokens,
                     InvalidUtf8Bytes = invalidBytes,
                     OverlongTokensDropped = scanner.OverlongTokens,
-                    DistinctTokens = table.Count,
+                    DistinctTokens = table.Live,
+                    VocabularyPrunings = table.Prunings,
+                    VocabularyPruneThreshold = table.PruneThreshold,
                     Words = vocab.Count,
                     Dimensions = dims,
                     Rank = svd.Rank,

@@ -1,16 +1,18 @@
 using System.Buffers.Binary;
+using System.Runtime.InteropServices;
 using SenseSplit.Core.Text;
 
 namespace SenseSplit.Cli.IO;
 
 /// <summary>
-/// The token-id stream of the first pass in a temporary file (int32 little-endian per token: a table id; -2 a line
-/// break, -3 a paragraph break), so later passes replay ids instead of decoding and tokenizing the text again.
+/// The token-id stream of the first pass in a temporary file (int32 little-endian per token, in the
+/// <see cref="IdStream"/> encoding: a table id, -2 a line break, -3 a paragraph break), so later passes replay ids
+/// instead of decoding and tokenizing the text again.
 /// Costs 4 bytes of temporary disk per token.
 /// </summary>
 public sealed class CorpusIdSpool : IIdSink, IDisposable
 {
-    private const int LineMark = -2, ParagraphMark = -3;
+    private const int LineMark = IdStream.LineMark, ParagraphMark = IdStream.ParagraphMark;
     private readonly string _path;
     private readonly FileStream _out;
     private readonly byte[] _buffer = new byte[1 << 20];
@@ -67,15 +69,20 @@ public sealed class CorpusIdSpool : IIdSink, IDisposable
             if (n % 4 != 0)
             {
                 // A short read inside a value: complete it.
-                int more = f.ReadAtLeast(buffer.AsSpan(n), 4 - n % 4, throwOnEndOfStream: true);
-                n += more;
+                int missing = 4 - n % 4;
+                f.ReadExactly(buffer.AsSpan(n, missing));
+                n += missing;
             }
-            for (int at = 0; at < n; at += 4)
+            if (BitConverter.IsLittleEndian) target.TableIds(MemoryMarshal.Cast<byte, int>(buffer.AsSpan(0, n)));
+            else
             {
-                int v = BinaryPrimitives.ReadInt32LittleEndian(buffer.AsSpan(at));
-                if (v >= -1) target.TableId(v);
-                else if (v == LineMark) target.LineBreak();
-                else target.ParagraphBreak();
+                for (int at = 0; at < n; at += 4)
+                {
+                    int v = BinaryPrimitives.ReadInt32LittleEndian(buffer.AsSpan(at));
+                    if (v >= -1) target.TableId(v);
+                    else if (v == LineMark) target.LineBreak();
+                    else target.ParagraphBreak();
+                }
             }
             read += n;
             onBytes?.Invoke(read);

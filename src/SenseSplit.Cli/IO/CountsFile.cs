@@ -50,11 +50,13 @@ public static class CountsFile
         return result;
     }
 
-    /// <summary>Writes "word TAB count" lines in the given order (UTF-8, "\n").</summary>
-    public static void Write(Stream stream, IReadOnlyList<string> words, IReadOnlyList<long> counts)
+    /// <summary>Writes "word TAB count" lines in the given order (UTF-8, "\n"), after a "word TAB count" header line when
+    /// <paramref name="header"/> is set (<see cref="Read"/> skips it).</summary>
+    public static void Write(Stream stream, IReadOnlyList<string> words, IReadOnlyList<long> counts, bool header = false)
     {
         if (words.Count != counts.Count) throw new ArgumentException($"words ({words.Count}) and counts ({counts.Count}) differ in length");
         using var writer = new StreamWriter(stream, new UTF8Encoding(false), 1 << 16, leaveOpen: true) { NewLine = "\n" };
+        if (header) writer.Write("word\tcount\n");
         for (int i = 0; i < words.Count; i++)
         {
             writer.Write(words[i]);

@@ -14,7 +14,12 @@ public sealed record EmbedManifest
     public long Tokens { get; init; }
     public long InvalidUtf8Bytes { get; init; }
     public long OverlongTokensDropped { get; init; }
+    /// <summary>Distinct tokens in the word table after pass 1 (after pruning, the ones left).</summary>
     public long DistinctTokens { get; init; }
+    /// <summary>How often the word table was pruned to stay within its share of the memory budget (0: counts exact).</summary>
+    public int VocabularyPrunings { get; init; }
+    /// <summary>The last pruning threshold T: every word seen more than T times was kept (0 without pruning).</summary>
+    public long VocabularyPruneThreshold { get; init; }
     public int Words { get; init; }
     public int Dimensions { get; init; }
     public int Rank { get; init; }

@@ -160,26 +160,40 @@ internal static class NpyFile
         return values;
     }
 
-    /// <summary>Writes a 2-D C-order little-endian array with a version 1.0 header laid out byte for byte as
-    /// numpy.save (numpy 1.24, numpy/lib/format.py) does: the dict with keys in sorted order, spare spaces so the first
-    /// axis can grow in place (21 minus the digits of the row count), then space padding and a newline so that the
-    /// data starts at a multiple of 64 bytes.</summary>
+    /// <summary>Writes a 2-D C-order little-endian array (see <see cref="Write{T}"/>).</summary>
     public static void WriteMatrix<T>(Stream stream, ReadOnlySpan<T> values, int rows, int columns) where T : unmanaged
     {
-        if (!BitConverter.IsLittleEndian) throw new PlatformNotSupportedException(".npy writing assumes a little-endian machine");
-        string descr = typeof(T) == typeof(float) ? "<f4" : typeof(T) == typeof(int) ? "<i4" : typeof(T) == typeof(double) ? "<f8"
-            : throw new ArgumentException($"no .npy type for {typeof(T).Name}");
         if ((long)rows * columns != values.Length) throw new ArgumentException($"values: length {values.Length} does not match {rows}×{columns}");
-        stream.Write(HeaderBytes(descr, rows, columns));
+        Write(stream, values, rows, columns);
+    }
+
+    /// <summary>Writes a 1-D little-endian array of all the values (see <see cref="Write{T}"/>).</summary>
+    public static void WriteVector<T>(Stream stream, ReadOnlySpan<T> values) where T : unmanaged => Write(stream, values, values.Length);
+
+    /// <summary>Writes a C-order little-endian array of float32, float64, int32 or int64 with a version 1.0 header laid
+    /// out byte for byte as numpy.save (numpy 1.24, numpy/lib/format.py) does: the dict with keys in sorted order, spare
+    /// spaces so the first axis can grow in place (21 minus the digits of its length), then space padding and a newline
+    /// so that the data starts at a multiple of 64 bytes.</summary>
+    private static void Write<T>(Stream stream, ReadOnlySpan<T> values, params long[] shape) where T : unmanaged
+    {
+        if (!BitConverter.IsLittleEndian) throw new PlatformNotSupportedException(".npy writing assumes a little-endian machine");
+        string descr = typeof(T) == typeof(float) ? "<f4" : typeof(T) == typeof(double) ? "<f8"
+            : typeof(T) == typeof(int) ? "<i4" : typeof(T) == typeof(long) ? "<i8"
+            : throw new ArgumentException($"no .npy type for {typeof(T).Name}");
+        stream.Write(HeaderBytes(descr, shape));
         stream.Write(MemoryMarshal.AsBytes(values));
     }
 
-    internal static byte[] HeaderBytes(string descr, long rows, long columns)
+    internal static byte[] HeaderBytes(string descr, params long[] shape)
     {
         const int GrowthDigits = 21, Align = 64, Prefix = 10; // magic (6) + version (2) + uint16 header length (2)
-        string rowText = rows.ToString(CultureInfo.InvariantCulture);
-        string dict = $"{{'descr': '{descr}', 'fortran_order': False, 'shape': ({rowText}, {columns.ToString(CultureInfo.InvariantCulture)}), }}"
-            + new string(' ', Math.Max(0, GrowthDigits - rowText.Length));
+        if (shape.Length == 0) throw new ArgumentException("a .npy array needs at least one axis", nameof(shape));
+        string firstAxis = shape[0].ToString(CultureInfo.InvariantCulture);
+        // Python's tuple repr: "(3,)" for one axis, "(3, 4)" for two or more.
+        string shapeText = shape.Length == 1 ? $"({firstAxis},)"
+            : "(" + string.Join(", ", shape.Select(s => s.ToString(CultureInfo.InvariantCulture))) + ")";
+        string dict = $"{{'descr': '{descr}', 'fortran_order': False, 'shape': {shapeText}, }}"
+            + new string(' ', Math.Max(0, GrowthDigits - firstAxis.Length));
         int withNewline = dict.Length + 1;
         int padding = Align - (Prefix + withNewline) % Align; // 1..64, as numpy computes it
         string header = dict + new string(' ', padding) + "\n";

@@ -135,7 +135,8 @@ public static class VectorFile
         return rows;
     }
 
-    /// <summary>Writes vectors in the plain-text format (UTF-8, "\n", shortest round-trip numbers), atomically.</summary>
+    /// <summary>Writes vectors in the plain-text format (UTF-8, "\n", shortest round-trip numbers, negative zero as 0),
+    /// atomically.</summary>
     /// <param name="header">Write the "count dimension" first line.</param>
     public static void WriteText(string path, WordVectors vectors, bool header = true)
     {
@@ -152,8 +153,9 @@ public static class VectorFile
         for (int i = 0; i < vectors.Count; i++)
         {
             Append(buffer, vectors.Words[i]);
-            foreach (float v in vectors.Row(i))
+            foreach (float x in vectors.Row(i))
             {
+                float v = x == 0 ? 0f : x; // no "-0"
                 var span = buffer.GetSpan(32);
                 span[0] = (byte)' ';
                 if (!v.TryFormat(span[1..], out int written, "R", CultureInfo.InvariantCulture))

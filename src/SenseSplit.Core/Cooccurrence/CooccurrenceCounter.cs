@@ -1,4 +1,6 @@
 using System.Collections.Concurrent;
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
 using SenseSplit.Core.Text;
 
 namespace SenseSplit.Core.Cooccurrence;
@@ -28,13 +30,20 @@ public sealed record CooccurrenceOptions
 /// Manning 2014, "GloVe", §4.2). Words not kept (id -1) keep their position, so distances are distances in the text.
 /// Weights are accumulated as exact integers w·L/d with L = lcm(1..window), so sums are exact and the result is the
 /// same for any thread count and any order of accumulation; they are divided by L once, at the end.
-/// The producer (the caller) fills blocks of ids; each block is handed to every worker, and worker t accumulates the
-/// pairs whose smaller id r has r mod T = t (disjoint rows, no shared writes): pairs of two ids below a cutoff K go to
-/// a dense triangular table, others to an open-addressing map, which is sorted and handed to an
-/// <see cref="IRunStore"/> when it reaches its share of the memory budget; runs are k-way merged at the end.
+/// <para>
+/// The producer (the caller) fills blocks of ids; each block is handed to every worker, and worker t enumerates the
+/// pairs (j, i), j &lt; i, whose right position i lies in the t-th of T equal slices of the block (fixed slices: each
+/// pair is enumerated by exactly one worker, whatever the scheduling, and no worker walks pairs it then drops).
+/// Pairs of two ids below a cutoff K go to the worker's own dense triangular table (the tables are added at the end).
+/// The other pairs belong to the worker that owns their row r = min(i, j), r mod T: a worker keeps its own and hands
+/// the others over in chunks, so every pair key lives in one worker's open-addressing maps. Those maps are sorted and
+/// handed to an <see cref="IRunStore"/> when they reach their share of the memory budget; at the end each worker
+/// merges its maps, runs and dense rows into its rows of the result, in parallel.
+/// </para>
 /// </remarks>
-public sealed class CooccurrenceCounter : IIdSink, IDisposable
+public sealed class CooccurrenceCounter : IIdSpanSink, IDisposable
 {
+    /// <summary>Segment end inside a block (a line end unless windows run across lines, or a paragraph end).</summary>
     private const int BreakMark = -2;
     private const int BlockSize = 1 << 18;
     private const int DenseCutoff = 2048;
@@ -49,9 +58,12 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
     private readonly long[] _weights;
     private readonly long _scale;
     private readonly long _mapBytes;
-    private readonly long[] _wordCounts;
     private readonly Worker[] _workers;
+    private readonly int _idBits;
     private readonly ConcurrentBag<Block> _free = new();
+    private readonly ConcurrentBag<PairChunk> _chunks = new();
+    /// <summary>Low 59 bits of a packed pair: the key (row &lt;&lt; bits) | column; the top 5 hold the distance.</summary>
+    private const ulong KeyMask = (1UL << 59) - 1;
     private Block _current;
     private bool _completed;
     private long _tokens;
@@ -69,14 +81,14 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
         _acrossLines = options.WindowAcrossLines;
         _threads = options.Threads > 0 ? options.Threads : Environment.ProcessorCount;
         _store = store ?? new MemoryRunStore();
+        _idBits = IdBits(words);
         long l = 1;
         for (int d = 2; d <= _window; d++) l = l / Gcd(l, d) * d;
         _scale = l;
         _weights = new long[_window + 1];
         for (int d = 1; d <= _window; d++) _weights[d] = l / d;
-        _wordCounts = new long[words];
         int cutoff = Math.Min(words, DenseCutoff);
-        long denseBytes = (long)cutoff * (cutoff + 1) / 2 * 8;
+        long denseBytes = DenseBytes(words);
         // Half of the budget (at least a quarter) goes to the pair maps; the rest is left for the dense tables, the
         // merged counts and the caller.
         _mapBytes = Math.Max(options.MemoryBytes / 4, options.MemoryBytes / 2 - denseBytes * _threads) / _threads;
@@ -84,6 +96,14 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
         for (int t = 0; t < _threads; t++) _workers[t] = new Worker(this, t, cutoff);
         foreach (var w in _workers) w.Start();
         _current = RentBlock();
+    }
+
+    /// <summary>Bytes of one worker's dense table and word counts for a vocabulary of <paramref name="words"/> words
+    /// (every worker has one; for budgeting by the caller).</summary>
+    public static long DenseBytes(int words)
+    {
+        long cutoff = Math.Min(words, DenseCutoff);
+        return cutoff * (cutoff + 1) / 2 * 8 + (long)words * 8;
     }
 
     /// <summary>The integer scale L = lcm(1..window) of the internal weights.</summary>
@@ -94,6 +114,9 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
     /// <summary>Bytes currently held by the workers' pair maps and dense tables.</summary>
     public long PairTableBytes => _workers.Sum(w => w.Bytes);
 
+    /// <summary>Bits needed for ids below <paramref name="words"/>.</summary>
+    private static int IdBits(int words) => Math.Max(1, 32 - System.Numerics.BitOperations.LeadingZeroCount((uint)(words - 1)));
+
     private static long Gcd(long a, long b) { while (b != 0) (a, b) = (b, a % b); return a; }
 
     /// <summary>Next token: a word id in [0, words) or -1 for a word that is not kept.</summary>
@@ -101,31 +124,66 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
     {
         if (id < -1 || id >= _words) throw new ArgumentOutOfRangeException(nameof(id), id, $"word id ({id}) must be -1 or below the vocabulary size ({_words})");
         _tokens++;
-        if (id >= 0) _wordCounts[id]++;
-        Append(id);
+        var b = _current;
+        b.Data[b.Length++] = id;
+        if (b.Length == BlockSize) Dispatch();
     }
 
     public void LineBreak()
     {
-        if (!_acrossLines) Append(BreakMark);
+        if (!_acrossLines) Break();
     }
 
-    public void ParagraphBreak() => Append(BreakMark);
+    public void ParagraphBreak() => Break();
 
-    private void Append(int value)
+    /// <summary>Many stream values at once, in the <see cref="IdStream"/> encoding: word ids in [0, words),
+    /// <see cref="IdStream.NotKept"/>, <see cref="IdStream.LineMark"/>, <see cref="IdStream.ParagraphMark"/>.
+    /// Same result as the value-by-value calls, with less work per token.</summary>
+    public void Append(ReadOnlySpan<int> values)
+    {
+        int words = _words;
+        int i = 0;
+        while (i < values.Length)
+        {
+            var b = _current;
+            var data = b.Data;
+            int length = b.Length;
+            // Copy ids up to the next mark or the end of the block; marks go through Break().
+            int room = Math.Min(values.Length - i, BlockSize - length);
+            int n = 0;
+            for (; n < room; n++)
+            {
+                int v = values[i + n];
+                if ((uint)(v + 1) > (uint)words) break; // a mark (v < -1) or an id out of range
+                data[length + n] = v;
+            }
+            b.Length = length + n;
+            _tokens += n;
+            i += n;
+            if (b.Length == BlockSize) Dispatch();
+            if (n < room)
+            {
+                int v = values[i++];
+                if (v == IdStream.LineMark) LineBreak();
+                else if (v == IdStream.ParagraphMark) ParagraphBreak();
+                else throw new ArgumentOutOfRangeException(nameof(values), v, $"stream value ({v}) must be a word id below the vocabulary size ({_words}), -1 or a mark (-2, -3)");
+            }
+        }
+    }
+
+    private void Break()
     {
         var b = _current;
-        if (value == BreakMark)
-        {
-            // A break right after the carried ids makes them useless; two breaks in a row are one.
-            if (b.Length == b.Prefix) { b.Length = 0; b.Prefix = 0; return; }
-            if (b.Data[b.Length - 1] == BreakMark) return;
-        }
-        b.Data[b.Length++] = value;
+        // A break right after the carried ids makes them useless; two breaks in a row are one.
+        if (b.Length == b.Prefix) { b.Length = 0; b.Prefix = 0; return; }
+        if (b.Data[b.Length - 1] == BreakMark) return;
+        b.Data[b.Length++] = BreakMark;
         if (b.Length == BlockSize) Dispatch();
     }
 
     private Block RentBlock() => _free.TryTake(out var b) ? b : new Block();
+    private PairChunk RentChunk() => _chunks.TryTake(out var c) ? c : new PairChunk();
+    private void ReturnChunk(PairChunk c) { c.Count = 0; _chunks.Add(c); }
 
     private void Dispatch()
     {
@@ -134,7 +192,6 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
         // Carry the ids since the last break (at most window of them) so pairs across the block edge are counted once.
         int from = full.Length;
         while (from > 0 && full.Length - from < _window && full.Data[from - 1] != BreakMark) from--;
-        if (full.Length - from > _window) from = full.Length - _window;
         int carry = full.Length - from;
         Array.Copy(full.Data, from, next.Data, 0, carry);
         next.Length = carry;
@@ -146,7 +203,7 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
         }
         else _free.Add(full);
         _current = next;
-        foreach (var w in _workers) if (w.Failure is not null) throw new InvalidOperationException("co-occurrence counting failed", w.Failure);
+        ThrowIfFailed();
     }
 
     private void Release(Block b)
@@ -162,15 +219,25 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
         Dispatch();
         foreach (var w in _workers) w.FinishInput();
         foreach (var w in _workers) w.Join();
-        foreach (var w in _workers) if (w.Failure is not null) throw new InvalidOperationException("co-occurrence counting failed", w.Failure);
+        ThrowIfFailed();
+        // The dense tables and word counts are added into worker 0's (integers: exact), then each worker applies the
+        // pairs handed to it and merges its rows, in parallel.
+        var first = _workers[0];
+        for (int t = 1; t < _threads; t++) first.AddDense(_workers[t]);
         var rowStart = new int[_threads][];
         var columns = new int[_threads][];
         var values = new float[_threads][];
         Parallel.For(0, _threads, new ParallelOptions { MaxDegreeOfParallelism = _threads }, t =>
         {
-            (rowStart[t], columns[t], values[t]) = _workers[t].Merge();
+            (rowStart[t], columns[t], values[t]) = _workers[t].Merge(first.Dense, first.TriangleBase);
         });
-        return new CooccurrenceCounts(_words, rowStart, columns, values, (long[])_wordCounts.Clone(), _tokens);
+        first.ReleaseDense();
+        return new CooccurrenceCounts(_words, rowStart, columns, values, first.WordCounts, _tokens);
+    }
+
+    private void ThrowIfFailed()
+    {
+        foreach (var w in _workers) if (w.Failure is not null) throw new InvalidOperationException("co-occurrence counting failed", w.Failure);
     }
 
     public void Dispose()
@@ -189,38 +256,60 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
         public int Pending;
     }
 
+    /// <summary>One full staging bucket of packed pairs (distance in the top 5 bits), handed from the worker that found
+    /// them to their row's owner, which applies it to its map of that bucket.</summary>
+    private sealed class PairChunk
+    {
+        public const int Capacity = 1024;
+        public readonly ulong[] Pairs = new ulong[Capacity];
+        public int Count;
+        public int Bucket;
+    }
+
     private sealed class Worker
     {
         private readonly CooccurrenceCounter _owner;
         private readonly int _index;
-        private readonly int _cutoff;
         private readonly BlockingCollection<Block> _queue = new(boundedCapacity: 3);
         private readonly Thread _thread;
         private long[] _dense;
         private readonly long[] _triangleBase;
-        // Pairs for the hash maps are first appended to one of 64 buckets (by hash), then applied to that bucket's
-        // own small map in a burst: the random accesses stay inside a map of ~1/64 of the size, mostly in cache.
+        private readonly long[] _wordCounts;
+        // Pairs for the hash maps are first appended to one of 64 buckets (by hash) of their row's owner, then applied
+        // to that bucket's own small map in a burst: the random accesses stay inside a map of ~1/64 of the size, mostly
+        // in cache. A full bucket of another owner is copied into a chunk and handed to that owner's inbox; chunks come
+        // back through the shared pool once applied.
         private const int Buckets = 64;
-        private const int BucketCapacity = 1024;
+        private const int BucketCapacity = PairChunk.Capacity;
         private readonly PairHashMap[] _maps;
-        private readonly ulong[] _bucketKeys = new ulong[Buckets * BucketCapacity];
-        private readonly int[] _bucketFill = new int[Buckets];
+        private readonly ulong[] _bucketKeys;
+        private readonly int[] _bucketFill;
+        private readonly ConcurrentQueue<PairChunk> _inbox = new();
+        private PairEntry[] _sortScratch = [];
 
         public Worker(CooccurrenceCounter owner, int index, int cutoff)
         {
             _owner = owner;
             _index = index;
-            _cutoff = cutoff;
+            Cutoff = cutoff;
             _dense = new long[(long)cutoff * (cutoff + 1) / 2];
             _triangleBase = new long[cutoff];
             for (int c = 0; c < cutoff; c++) _triangleBase[c] = (long)c * (c + 1) / 2;
+            _wordCounts = new long[owner._words];
             _maps = new PairHashMap[Buckets];
             for (int b = 0; b < Buckets; b++) _maps[b] = new PairHashMap(1024, owner._mapBytes / Buckets);
+            _bucketKeys = new ulong[owner._threads * Buckets * BucketCapacity];
+            _bucketFill = new int[owner._threads * Buckets];
             _thread = new Thread(Loop) { IsBackground = true, Name = $"cooccurrence-{index}" };
         }
 
+        public int Cutoff { get; }
+        public long[] Dense => _dense;
+        public long[] TriangleBase => _triangleBase;
+        public long[] WordCounts => _wordCounts;
         public Exception? Failure { get; private set; }
-        public long Bytes => _dense.LongLength * 8 + _maps.Sum(m => m?.Bytes ?? 0);
+        public long Bytes => _dense.LongLength * 8 + _maps.Sum(m => m?.Bytes ?? 0) + _sortScratch.LongLength * 16
+            + (long)(_bucketKeys.Length + _inbox.Count * PairChunk.Capacity) * 8;
 
         public void Start() => _thread.Start();
         public void Enqueue(Block b) => _queue.Add(b);
@@ -231,59 +320,119 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
         {
             foreach (var block in _queue.GetConsumingEnumerable())
             {
-                try { if (Failure is null) Count(block); }
+                try
+                {
+                    if (Failure is null)
+                    {
+                        ApplyInbox();
+                        Count(block);
+                    }
+                }
                 catch (Exception ex) { Failure = ex; }
                 finally { _owner.Release(block); }
             }
+            // Hand over what is staged for the other owners (they apply it in Merge, after every worker has stopped).
+            try
+            {
+                for (int o = 0; o < _owner._threads; o++)
+                {
+                    if (o == _index) continue;
+                    for (int b = 0; b < Buckets; b++)
+                    {
+                        int fill = _bucketFill[o * Buckets + b];
+                        if (fill > 0) HandOver(o, b, fill);
+                        _bucketFill[o * Buckets + b] = 0;
+                    }
+                }
+            }
+            catch (Exception ex) { Failure ??= ex; }
         }
 
         private void Count(Block block)
         {
-            var data = block.Data;
-            int length = block.Length;
-            int window = _owner._window;
+            // This worker's slice of the new positions [Prefix, Length): fixed by the block alone.
             int threads = _owner._threads;
-            int me = _index;
-            int cutoff = _cutoff;
-            var weights = _owner._weights;
-            var dense = _dense;
-            var triangleBase = _triangleBase;
-            for (int i = block.Prefix; i < length; i++)
+            int fresh = block.Length - block.Prefix;
+            int start = block.Prefix + (int)((long)fresh * _index / threads);
+            int end = block.Prefix + (int)((long)fresh * (_index + 1) / threads);
+            int window = _owner._window;
+            int cutoff = Cutoff;
+            int bits = _owner._idBits;
+            // Row owner r mod T; a mask when T is a power of two (the usual case), a division otherwise (map pairs only).
+            int ownerMask = (threads & (threads - 1)) == 0 ? threads - 1 : -1;
+            // The hot loop indexes without bounds checks: positions stay in [0, Length) (the look-back stops at 0),
+            // ids are below the vocabulary size (checked when appended), dense indices below cutoff(cutoff+1)/2.
+            ref int data = ref MemoryMarshal.GetArrayDataReference(block.Data);
+            ref long weights = ref MemoryMarshal.GetArrayDataReference(_owner._weights);
+            ref long dense = ref MemoryMarshal.GetArrayDataReference(_dense);
+            ref long triangleBase = ref MemoryMarshal.GetArrayDataReference(_triangleBase);
+            ref long wordCounts = ref MemoryMarshal.GetArrayDataReference(_wordCounts);
+            for (int i = start; i < end; i++)
             {
-                int y = data[i];
+                int y = Unsafe.Add(ref data, i);
                 if (y < 0) continue;
+                Unsafe.Add(ref wordCounts, y)++;
                 int lowest = Math.Max(0, i - window);
                 for (int j = i - 1; j >= lowest; j--)
                 {
-                    int x = data[j];
+                    int x = Unsafe.Add(ref data, j);
                     if (x < 0) { if (x == BreakMark) break; continue; }
-                    int r = x < y ? x : y;
-                    int c = x < y ? y : x;
-                    if (threads > 1 && r % threads != me) continue;
-                    long w = weights[i - j];
-                    if (c < cutoff) dense[triangleBase[c] + r] += w;
-                    else
+                    int r = Math.Min(x, y);
+                    int c = Math.Max(x, y);
+                    if (c < cutoff)
                     {
-                        // Distance in the top 5 bits (ids are below 2^24), row and column below.
-                        ulong key = ((ulong)(i - j) << 59) | ((ulong)(uint)r << 32) | (uint)c;
-                        int bucket = (int)(((((ulong)(uint)r << 32) | (uint)c) * 0x9E3779B97F4A7C15UL) >> 58);
-                        int fill = _bucketFill[bucket];
-                        _bucketKeys[bucket * BucketCapacity + fill] = key;
-                        if (++fill == BucketCapacity) { ApplyBucket(bucket, fill); fill = 0; }
-                        _bucketFill[bucket] = fill;
+                        Unsafe.Add(ref dense, (nint)(Unsafe.Add(ref triangleBase, c) + r)) += Unsafe.Add(ref weights, i - j);
+                        continue;
                     }
+                    // Distance in the top 5 bits, then (row << bits) | column (2·bits ≤ 48).
+                    ulong packed = ((ulong)(i - j) << 59) | ((ulong)(uint)r << bits) | (uint)c;
+                    Stage(packed, ownerMask >= 0 ? r & ownerMask : r % threads);
                 }
             }
         }
 
-        private void ApplyBucket(int bucket, int fill)
+        // Not inlined: the dense path of Count keeps its references in registers when this larger path is a call.
+        [MethodImpl(MethodImplOptions.NoInlining)]
+        private void Stage(ulong packed, int owner)
+        {
+            ulong key = packed & KeyMask;
+            int slot = owner * Buckets + (int)((key * 0x9E3779B97F4A7C15UL) >> 58);
+            int fill = _bucketFill[slot];
+            _bucketKeys[slot * BucketCapacity + fill] = packed;
+            if (++fill == BucketCapacity)
+            {
+                if (owner == _index) ApplyBucket(slot - owner * Buckets, _bucketKeys.AsSpan(slot * BucketCapacity, fill));
+                else HandOver(owner, slot - owner * Buckets, fill);
+                fill = 0;
+            }
+            _bucketFill[slot] = fill;
+        }
+
+        private void HandOver(int owner, int bucket, int fill)
+        {
+            var chunk = _owner.RentChunk();
+            _bucketKeys.AsSpan((owner * Buckets + bucket) * BucketCapacity, fill).CopyTo(chunk.Pairs);
+            chunk.Count = fill;
+            chunk.Bucket = bucket;
+            _owner._workers[owner]._inbox.Enqueue(chunk);
+        }
+
+        private void ApplyInbox()
+        {
+            while (_inbox.TryDequeue(out var chunk))
+            {
+                ApplyBucket(chunk.Bucket, chunk.Pairs.AsSpan(0, chunk.Count));
+                _owner.ReturnChunk(chunk);
+            }
+        }
+
+        private void ApplyBucket(int bucket, ReadOnlySpan<ulong> keys)
         {
             var map = _maps[bucket];
             var weights = _owner._weights;
-            var keys = _bucketKeys.AsSpan(bucket * BucketCapacity, fill);
             foreach (ulong packed in keys)
             {
-                ulong key = packed & ((1UL << 59) - 1);
+                ulong key = packed & KeyMask;
                 long w = weights[(int)(packed >> 59)];
                 if (!map.TryAdd(key, w))
                 {
@@ -293,50 +442,69 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
             }
         }
 
+        /// <summary>Sorts every bucket map in place (radix sort with a scratch of the largest map's size).</summary>
+        private List<IPairReader> SortMaps()
+        {
+            int largest = 0;
+            foreach (var m in _maps) largest = Math.Max(largest, m.Count);
+            if (_sortScratch.Length < largest) _sortScratch = new PairEntry[largest];
+            var readers = new List<IPairReader>(Buckets);
+            foreach (var m in _maps)
+            {
+                var (entries, n) = m.SortedView(_sortScratch, 2 * _owner._idBits);
+                readers.Add(new EntryPairReader(entries, n));
+            }
+            return readers;
+        }
+
         /// <summary>One bucket map is at its share of the budget: all maps go to the run store as one sorted run
         /// (64-way merge of the individually sorted maps) and are emptied.</summary>
         private void SpillAll()
         {
-            var readers = new List<IPairReader>(Buckets);
-            foreach (var m in _maps)
-            {
-                var (k, v, n) = m.SortedView();
-                readers.Add(new ArrayPairReader(k, v, n));
-            }
-            using (var merged = new PairMerger(readers)) _owner._store.Write(_index, merged);
+            using (var merged = new PairMerger(SortMaps())) _owner._store.Write(_index, merged);
             foreach (var m in _maps) m.Clear();
         }
 
-        /// <summary>Merges the dense table, the map and this worker's spilled runs into compact rows.</summary>
-        public (int[] RowStart, int[] Columns, float[] Values) Merge()
+        /// <summary>Adds another worker's dense table and word counts into this one's, and frees them there.</summary>
+        public void AddDense(Worker other)
         {
+            var a = _dense;
+            var b = other._dense;
+            for (int i = 0; i < a.Length; i++) a[i] += b[i];
+            for (int i = 0; i < _wordCounts.Length; i++) _wordCounts[i] += other._wordCounts[i];
+            other._dense = [];
+        }
+
+        public void ReleaseDense() => _dense = [];
+
+        /// <summary>Applies the pairs handed over and still staged, then merges the summed dense table (the owned rows),
+        /// the sorted maps and this worker's spilled runs into compact rows.</summary>
+        public (int[] RowStart, int[] Columns, float[] Values) Merge(long[] dense, long[] triangleBase)
+        {
+            ApplyInbox();
+            int own = _index * Buckets;
+            for (int b = 0; b < Buckets; b++)
+            {
+                int fill = _bucketFill[own + b];
+                if (fill > 0) ApplyBucket(b, _bucketKeys.AsSpan((own + b) * BucketCapacity, fill));
+                _bucketFill[own + b] = 0;
+            }
             int threads = _owner._threads;
             int words = _owner._words;
+            int bits = _owner._idBits;
+            ulong columnMask = (1UL << bits) - 1;
+            int cutoff = Cutoff;
             int localRows = (words - _index + threads - 1) / threads;
             var rowStart = new int[localRows + 1];
-            for (int b = 0; b < Buckets; b++)
-            {
-                if (_bucketFill[b] > 0) ApplyBucket(b, _bucketFill[b]);
-                _bucketFill[b] = 0;
-            }
-            // The bucket maps hold disjoint keys: concatenate them and sort once.
-            int count = 0;
-            foreach (var map in _maps) count += map.Count;
-            var allKeys = new ulong[count];
-            var allValues = new long[count];
-            int filled = 0;
-            for (int b = 0; b < Buckets; b++)
-            {
-                var (keys, vals, entries) = _maps[b].TakeSorted();
-                _maps[b] = null!;
-                Array.Copy(keys, 0, allKeys, filled, entries);
-                Array.Copy(vals, 0, allValues, filled, entries);
-                filled += entries;
-            }
-            Array.Sort(allKeys, allValues);
-            var readers = new List<IPairReader>(_owner._store.Open(_index)) { new ArrayPairReader(allKeys, allValues, count) };
-            using var merged = readers.Count == 1 ? readers[0] : new PairMerger(readers);
-            var cols = new int[Math.Max(16, count + DenseNonZeros())];
+            long mapEntries = 0;
+            foreach (var m in _maps) mapEntries += m.Count;
+            int denseNonZeros = 0;
+            for (int r = _index; r < cutoff; r += threads)
+                for (int c = r; c < cutoff; c++)
+                    if (dense[triangleBase[c] + r] != 0) denseNonZeros++;
+            var readers = new List<IPairReader>(_owner._store.Open(_index));
+            readers.AddRange(SortMaps());
+            var cols = new int[(int)Math.Min(Array.MaxLength, Math.Max(16, mapEntries + denseNonZeros))];
             var values = new float[cols.Length];
             int n = 0;
             double inverseScale = 1.0 / _owner._scale;
@@ -349,36 +517,32 @@ public sealed class CooccurrenceCounter : IIdSink, IDisposable
                 {
                     int local = nextDenseRow / threads;
                     while (currentLocal <= local) rowStart[currentLocal++] = nn;
-                    if (nextDenseRow < _cutoff)
+                    if (nextDenseRow < cutoff)
                     {
-                        for (int c = nextDenseRow; c < _cutoff; c++)
+                        for (int c = nextDenseRow; c < cutoff; c++)
                         {
-                            long v = _dense[_triangleBase[c] + nextDenseRow];
-                            if (v == 0) continue;
-                            Append(ref cols, ref values, ref nn, c, (float)(v * inverseScale));
+                            long v = dense[triangleBase[c] + nextDenseRow];
+                            if (v != 0) Append(ref cols, ref values, ref nn, c, (float)(v * inverseScale));
                         }
                     }
                     nextDenseRow += threads;
                 }
             }
-            while (merged.Next(out ulong key, out long value))
+            using (var merged = new PairMerger(readers))
             {
-                int r = (int)(key >> 32), c = (int)(uint)key;
-                StartRowsUpTo(r, ref n);
-                Append(ref cols, ref values, ref n, c, (float)(value * inverseScale));
+                while (merged.Next(out ulong key, out long value))
+                {
+                    int r = (int)(key >> bits), c = (int)(key & columnMask);
+                    StartRowsUpTo(r, ref n);
+                    Append(ref cols, ref values, ref n, c, (float)(value * inverseScale));
+                }
             }
             StartRowsUpTo(words - 1, ref n);
             while (currentLocal <= localRows) rowStart[currentLocal++] = n;
-            _dense = [];
+            for (int b = 0; b < Buckets; b++) _maps[b] = null!;
+            _sortScratch = [];
             if (n < cols.Length) { Array.Resize(ref cols, n); Array.Resize(ref values, n); }
             return (rowStart, cols, values);
-        }
-
-        private int DenseNonZeros()
-        {
-            int n = 0;
-            foreach (long v in _dense) if (v != 0) n++;
-            return n;
         }
 
         private static void Append(ref int[] cols, ref float[] values, ref int n, int c, float v)

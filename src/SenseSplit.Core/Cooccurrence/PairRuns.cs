@@ -61,6 +61,21 @@ public sealed class ArrayPairReader(ulong[] keys, long[] values, int count) : IP
     public void Dispose() { }
 }
 
+/// <summary>Reads the first <c>count</c> entries of an array of entries sorted by key.</summary>
+public sealed class EntryPairReader(PairEntry[] entries, int count) : IPairReader
+{
+    private int _next;
+
+    public bool Next(out ulong key, out long value)
+    {
+        if (_next < count) { key = entries[_next].Key; value = entries[_next].Value; _next++; return true; }
+        key = 0; value = 0;
+        return false;
+    }
+
+    public void Dispose() { }
+}
+
 /// <summary>k-way merge of sorted pair readers, summing equal keys (binary heap on the current key of each reader).</summary>
 public sealed class PairMerger : IPairReader
 {

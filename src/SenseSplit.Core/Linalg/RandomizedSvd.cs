@@ -64,7 +64,7 @@ public static class RandomizedSvd
 
         var q = FindRange(a, at, k, options, threads, progress, out int l, out var spare);
 
-        // Stage B (Algorithm 5.1): Bᵀ = AᵀQ, B Bᵀ = W Σ² Wᵀ. Bᵀ reuses a scratch buffer of stage A (n × l or larger).
+        // Stage B (Algorithm 5.1): Bᵀ = AᵀQ, B Bᵀ = W Σ² Wᵀ. Bᵀ goes into stage A's other work buffer.
         progress?.Report("final projection");
         var bt = spare;
         at.Multiply(q, l, bt, threads);
@@ -101,33 +101,33 @@ public static class RandomizedSvd
     internal static float[] FindRange(SparseMatrix a, SparseMatrix at, int k, RandomizedSvdOptions options, int threads,
         IProgress<string>? progress, out int l) => FindRange(a, at, k, options, threads, progress, out l, out _);
 
-    /// <param name="spare">A scratch buffer of at least columns × l floats that the caller may reuse.</param>
+    /// <param name="spare">The other work buffer (max(rows, columns) × l floats), which the caller may reuse.</param>
+    /// <remarks>Two work buffers of max(rows, columns) × l floats serve every step: each product reads one and writes
+    /// the other, and each orthonormalisation pass does the same, so the buffer that held its input becomes the free one.</remarks>
     private static float[] FindRange(SparseMatrix a, SparseMatrix at, int k, RandomizedSvdOptions options, int threads,
         IProgress<string>? progress, out int l, out float[] spare)
     {
         int m = a.Rows, n = a.Columns;
         l = Math.Min(k + options.Oversample, Math.Min(m, n));
-        // Scratch rented once: two tall buffers per side, reused by every iteration (l only shrinks).
-        var tallM = new float[(long)m * l];
-        var tallM2 = new float[(long)m * l];
-        var tallN = new float[(long)n * l];
-        var tallN2 = new float[(long)n * l];
-        new Gaussian((ulong)(uint)options.Seed).Fill(tallN);
-        a.Multiply(tallN, l, tallM, threads);
+        long size = (long)Math.Max(m, n) * l;
+        var one = new float[size];
+        var two = new float[size];
+        new Gaussian((ulong)(uint)options.Seed).Fill(one.AsSpan(0, n * l));
+        a.Multiply(one, l, two, threads);
         // Inside the power iterations one pass of CholeskyQR (orthonormal to ~ε·κ²) is enough to keep the basis from
         // collapsing; the last basis gets a second pass (CholeskyQR2) so Q is orthonormal to working precision.
-        bool last = options.PowerIterations == 0;
-        var q = Orthonormalize(tallM, tallM2, m, ref l, last ? 2 : 1, threads);
+        var q = Orthonormalize(two, one, m, ref l, options.PowerIterations == 0 ? 2 : 1, threads);
         for (int it = 0; it < options.PowerIterations; it++)
         {
             progress?.Report($"power iteration {it + 1} of {options.PowerIterations}");
-            at.Multiply(q, l, tallN, threads);
-            var zq = Orthonormalize(tallN, tallN2, n, ref l, 1, threads);
-            var y = q == tallM ? tallM2 : tallM;
-            a.Multiply(zq, l, y, threads);
-            q = Orthonormalize(y, y == tallM ? tallM2 : tallM, m, ref l, it == options.PowerIterations - 1 ? 2 : 1, threads);
+            var free = q == one ? two : one;
+            at.Multiply(q, l, free, threads);
+            var zq = Orthonormalize(free, q, n, ref l, 1, threads);
+            free = zq == one ? two : one;
+            a.Multiply(zq, l, free, threads);
+            q = Orthonormalize(free, zq, m, ref l, it == options.PowerIterations - 1 ? 2 : 1, threads);
         }
-        spare = tallN;
+        spare = q == one ? two : one;
         return q;
     }
 

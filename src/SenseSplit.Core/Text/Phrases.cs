@@ -93,6 +93,9 @@ public sealed class PhraseJoiner
 
     public void Flush<TSink>(TSink next) where TSink : IIdSink => Process(true, next);
 
+    /// <summary>Ids held back while a phrase may still match.</summary>
+    internal ReadOnlySpan<int> Pending => _pending.AsSpan(0, _count);
+
     private void Process<TSink>(bool flush, TSink next) where TSink : IIdSink
     {
         while (_count > 0)

@@ -65,26 +65,50 @@ public interface IIdSink
 }
 
 /// <summary>Pass-1 sink: counts every token in a <see cref="WordTable"/>, optionally after joining listed phrases.</summary>
+/// <remarks>With a byte budget for the table, the table is pruned by lossy counting (<see cref="WordTable.Prune"/>)
+/// whenever adding a new word would take it past the budget. The words in the table before counting starts (e.g. the
+/// words of a phrase list) and the ids the phrase joiner still holds are never pruned. After the first pruning the
+/// table's ids are reused, so the id stream is no longer forwarded (<see cref="Pruned"/>): a later pass must read the
+/// text again and look every token up.</remarks>
 public sealed class VocabularyCounter : ITokenSink, IIdSink
 {
     private readonly WordTable _table;
     private readonly PhraseJoiner? _joiner;
-    private readonly IIdSink? _forward;
+    private IIdSink? _forward;
+    private readonly long _maxTableBytes;
+    private readonly int _pinned;
 
     /// <param name="forward">Optional: receives the (joined) table-id stream with its breaks, e.g. to spool it for later passes.</param>
-    public VocabularyCounter(WordTable table, PhraseJoiner? joiner = null, IIdSink? forward = null)
+    /// <param name="maxTableBytes">Budget of the table (<see cref="WordTable.ApproximateBytes"/>); unlimited by default.</param>
+    public VocabularyCounter(WordTable table, PhraseJoiner? joiner = null, IIdSink? forward = null, long maxTableBytes = long.MaxValue)
     {
         _table = table ?? throw new ArgumentNullException(nameof(table));
         _joiner = joiner;
         _forward = forward;
+        if (maxTableBytes < 1) throw new ArgumentOutOfRangeException(nameof(maxTableBytes), maxTableBytes, $"table budget ({maxTableBytes} bytes) must be positive");
+        _maxTableBytes = maxTableBytes;
+        _pinned = table.Count;
     }
 
     /// <summary>Tokens counted (after phrase joining, a phrase counts once).</summary>
     public long Tokens { get; private set; }
 
+    /// <summary>The table was pruned: its counts are lower bounds (at most <see cref="WordTable.PruneThreshold"/> too
+    /// low) and the id stream stopped at the first pruning.</summary>
+    public bool Pruned => _table.Prunings > 0;
+
     public void Token(ReadOnlySpan<char> token)
     {
-        int id = _table.GetOrAdd(token);
+        int id = _table.Find(token);
+        if (id < 0)
+        {
+            if (_maxTableBytes != long.MaxValue && _table.BytesAfterAdding(token.Length) > _maxTableBytes)
+            {
+                _table.Prune(_pinned, _joiner is null ? default : _joiner.Pending);
+                if (_forward is not null && Pruned) _forward = null;
+            }
+            id = _table.GetOrAdd(token);
+        }
         if (_joiner is null) Id(id); else _joiner.Push(id, this);
     }
 
@@ -109,4 +133,20 @@ public sealed class VocabularyCounter : ITokenSink, IIdSink
         Tokens++;
         _forward?.Id(id);
     }
+}
+
+/// <summary>Counts table ids (after a table was pruned and reset, <see cref="WordTable.ResetCounts"/>): every id
+/// ≥ 0 adds one to its word's count, so the words left in the table get exact counts; others (-1) are skipped.</summary>
+public sealed class TableRecount(WordTable table) : IIdSink
+{
+    public long Tokens { get; private set; }
+
+    public void Id(int id)
+    {
+        Tokens++;
+        if (id >= 0) table.Add(id, 1);
+    }
+
+    public void LineBreak() { }
+    public void ParagraphBreak() { }
 }

@@ -354,4 +354,45 @@ public sealed class EmbedSpillTests : IDisposable
         // The temporary run files are gone.
         Assert.Empty(Directory.GetFileSystemEntries(temp));
     }
+
+    [Fact]
+    public void Embed_VocabularyBeyondTableBudget_PrunesAndKeepsFrequentWordsExactly()
+    {
+        // 300 frequent words (Zipf-like) and ~200,000 one-off tokens: with --memory 16M the word table (a quarter,
+        // 4 MB) must be pruned. Frequent words (all above --min-count 20, far above the pruning threshold) are all kept
+        // and counted again exactly, and the counting pass reads the text again, so the output equals that of an
+        // unpruned run (lossy counting: Manku & Motwani 2002, §4.2, every item above the threshold is kept).
+        var rng = new Random(41);
+        var sb = new StringBuilder();
+        for (int line = 0; line < 60_000; line++)
+        {
+            for (int t = 0; t < 12; t++)
+            {
+                if (rng.NextDouble() < 0.3) sb.Append('u').Append(rng.NextInt64(1L << 40).ToString("x", System.Globalization.CultureInfo.InvariantCulture));
+                else sb.Append('w').Append(Math.Min(299, (int)(1 / (1 - rng.NextDouble())) - 1).ToString(System.Globalization.CultureInfo.InvariantCulture));
+                sb.Append(' ');
+            }
+            sb.Append('\n');
+        }
+        string corpus = Path.Combine(_dir, "c.txt");
+        File.WriteAllText(corpus, sb.ToString());
+        var err = new StringWriter();
+        Assert.Equal(0, CliApp.Run(["embed", corpus, "--out", Path.Combine(_dir, "small"), "--dim", "8", "--memory", "16M", "--min-count", "20"], new StringWriter(), err));
+        Assert.Equal(0, CliApp.Run(["embed", corpus, "--out", Path.Combine(_dir, "big"), "--dim", "8", "--min-count", "20"], new StringWriter(), new StringWriter()));
+        using var small = JsonDocument.Parse(File.ReadAllText(Path.Combine(_dir, "small", "manifest.json")));
+        using var big = JsonDocument.Parse(File.ReadAllText(Path.Combine(_dir, "big", "manifest.json")));
+        Assert.True(small.RootElement.GetProperty("vocabularyPrunings").GetInt32() > 0, err.ToString());
+        long threshold = small.RootElement.GetProperty("vocabularyPruneThreshold").GetInt64();
+        Assert.InRange(threshold, 1, 19);
+        Assert.Equal(0, big.RootElement.GetProperty("vocabularyPrunings").GetInt32());
+        Assert.True(small.RootElement.GetProperty("distinctTokens").GetInt64() < big.RootElement.GetProperty("distinctTokens").GetInt64());
+        Assert.Contains("the vocabulary is the same as without pruning", err.ToString());
+        Assert.Contains("reading the text again", err.ToString());
+        Assert.Equal(File.ReadAllBytes(Path.Combine(_dir, "big", "counts.tsv")), File.ReadAllBytes(Path.Combine(_dir, "small", "counts.tsv")));
+        Assert.Equal(File.ReadAllBytes(Path.Combine(_dir, "big", "vectors.txt")), File.ReadAllBytes(Path.Combine(_dir, "small", "vectors.txt")));
+        // With --min-count at or below the threshold, words of the tail may be missing: a warning says so.
+        var err2 = new StringWriter();
+        Assert.Equal(0, CliApp.Run(["embed", corpus, "--out", Path.Combine(_dir, "low"), "--dim", "8", "--memory", "16M", "--min-count", "1"], new StringWriter(), err2));
+        Assert.Contains("may be missing", err2.ToString());
+    }
 }

@@ -124,6 +124,79 @@ public class CooccurrenceCounterTests
         }
     }
 
+    [Theory]
+    [InlineData(1, false)]
+    [InlineData(2, true)]
+    [InlineData(3, false)]
+    public void Append_Spans_SameAsValueByValue(int threads, bool acrossLines)
+    {
+        var rng = new Random(30 + threads);
+        int words = 4000;
+        var stream = RandomStream(rng, 600_000, words);
+        var options = new CooccurrenceOptions { Threads = threads, WindowAcrossLines = acrossLines };
+        var one = Count(stream, words, options);
+        using var counter = new CooccurrenceCounter(words, options);
+        // Uneven span lengths, so that spans end inside blocks and next to marks.
+        for (int at = 0; at < stream.Length;)
+        {
+            int n = Math.Min(stream.Length - at, rng.Next(1, 70_000));
+            counter.Append(stream.AsSpan(at, n));
+            at += n;
+        }
+        var bulk = counter.Complete();
+        AssertIdentical(one, bulk);
+        Assert.Equal(one.WordCounts, bulk.WordCounts);
+        Assert.Equal(one.Tokens, bulk.Tokens);
+    }
+
+    [Fact]
+    public void Append_BadValue_Throws()
+    {
+        using var counter = new CooccurrenceCounter(3, new CooccurrenceOptions { Threads = 1 });
+        Assert.Throws<ArgumentOutOfRangeException>(() => counter.Append([0, 1, 3]));
+        Assert.Throws<ArgumentOutOfRangeException>(() => counter.Append([0, -4]));
+    }
+
+    [Fact]
+    public void Complete_WordCounts_MatchStream()
+    {
+        var rng = new Random(17);
+        var stream = RandomStream(rng, 300_000, 2500);
+        var counts = Count(stream, 2500, new CooccurrenceOptions { Threads = 2 });
+        var expected = new long[2500];
+        foreach (int v in stream) if (v >= 0) expected[v]++;
+        Assert.Equal(expected, counts.WordCounts);
+    }
+
+    [Theory]
+    [InlineData(false)]
+    [InlineData(true)]
+    public void TextPipeline_LinesAndBlankLines_BoundWindows(bool acrossLines)
+    {
+        // Tokenizer → word table → ids → counter, as embed runs it. A line end bounds a window unless windows run
+        // across lines; a blank line always does (docs/tokenizer.md, "Lines, paragraphs and windows").
+        string text = "a b\r\nc d\n\ne f\n";
+        var table = new SenseSplit.Core.Text.WordTable();
+        var scanner = new SenseSplit.Core.Text.TokenScanner(new SenseSplit.Core.Text.TokenizerOptions());
+        var vocabularyPass = new SenseSplit.Core.Text.VocabularyCounter(table);
+        scanner.Scan(text, true, vocabularyPass);
+        scanner.EndDocument(vocabularyPass);
+        var vocab = SenseSplit.Core.Text.Vocabulary.Select(table, 1, 10);
+        using var counter = new CooccurrenceCounter(vocab.Count, new CooccurrenceOptions { Window = 5, WindowAcrossLines = acrossLines, Threads = 2 });
+        var mapper = new SenseSplit.Core.Text.TokenIdMapper(table, vocab.TableIdToWordId, null, counter);
+        scanner.Scan(text, true, mapper);
+        scanner.EndDocument(mapper);
+        var counts = counter.Complete();
+        double X(string p, string q) => counts.Get(Array.IndexOf(vocab.Words, p), Array.IndexOf(vocab.Words, q));
+        Assert.Equal(1.0, X("a", "b"));
+        Assert.Equal(1.0, X("c", "d"));
+        Assert.Equal(1.0, X("e", "f"));
+        Assert.Equal(0.0, X("d", "e")); // the blank line
+        Assert.Equal(0.0, X("b", "e"));
+        Assert.Equal(acrossLines ? 1.0 : 0.0, X("b", "c"));
+        Assert.Equal(acrossLines ? 1.0 / 3 : 0.0, X("a", "d"), 6); // stored as float
+    }
+
     [Fact]
     public void Id_OutOfRange_Throws()
     {

@@ -18,6 +18,21 @@ public class CountsFileTests
         Assert.Equal(4, c.Count);
     }
 
+    [Theory]
+    [InlineData(true, "word\tcount\nthe\t12\nnew_york\t3\n")]
+    [InlineData(false, "the\t12\nnew_york\t3\n")]
+    public void Write_WithAndWithoutHeader_ExactBytesAndReadBack(bool header, string expected)
+    {
+        using var t = new TempFolder();
+        var path = t.File("c.tsv");
+        using (var f = File.Create(path)) CountsFile.Write(f, ["the", "new_york"], [12L, 3L], header);
+        Assert.Equal(expected, File.ReadAllText(path));
+        var back = CountsFile.Read(path);
+        Assert.Equal(2, back.Count);
+        Assert.Equal(12, back["the"]);
+        Assert.Equal(3, back["new_york"]);
+    }
+
     [Fact]
     public void Read_TabHeaderLine_SkippedAsEmbedWritesIt()
     {

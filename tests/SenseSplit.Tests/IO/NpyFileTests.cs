@@ -24,6 +24,31 @@ public class NpyFileTests
         Assert.Equal(File.ReadAllBytes(TempFolder.Fixture("numpy-i4.npy")), ours.ToArray());
     }
 
+    [Fact]
+    public void WriteMatrix_Float64_BytesIdenticalToNumpySave()
+    {
+        // tests/TestData/io/numpy-f64.npy: numpy.save (NumPy 1.24.2) of these values as '<f8'.
+        double[] values = [0.1, -0.2, 0.3, 1e-3, 2.5, -7.0];
+        var ours = new MemoryStream();
+        NpyFile.WriteMatrix<double>(ours, values, 2, 3);
+        Assert.Equal(File.ReadAllBytes(TempFolder.Fixture("numpy-f64.npy")), ours.ToArray());
+    }
+
+    [Fact]
+    public void WriteVector_OneAxis_BytesIdenticalToNumpySave()
+    {
+        // tests/TestData/io/numpy-1d.npy: numpy.save (NumPy 1.24.2) of the 1-D '<f4' array [1, 2, 3]; shape "(3,)".
+        var ours = new MemoryStream();
+        NpyFile.WriteVector<float>(ours, [1f, 2f, 3f]);
+        Assert.Equal(File.ReadAllBytes(TempFolder.Fixture("numpy-1d.npy")), ours.ToArray());
+    }
+
+    [Fact]
+    public void WriteMatrix_ShapeMismatch_Throws()
+    {
+        Assert.Throws<ArgumentException>(() => NpyFile.WriteMatrix<float>(new MemoryStream(), new float[5], 2, 3));
+    }
+
     [Theory]
     [InlineData(0, 1)]
     [InlineData(1, 1)]

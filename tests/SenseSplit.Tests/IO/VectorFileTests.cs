@@ -128,6 +128,15 @@ public class VectorFileTests
     }
 
     [Fact]
+    public void WriteText_NegativeZero_WrittenAsZero()
+    {
+        using var t = new TempFolder();
+        var path = t.File("z.txt");
+        VectorFile.WriteText(path, new SenseSplit.Core.Vectors.WordVectors(["a"], [-0f, 1.5f, -2f], 3));
+        Assert.Equal("1 3\na 0 1.5 -2\n", File.ReadAllText(path));
+    }
+
+    [Fact]
     public void WriteNpy_ThenRead_ExactRoundTrip()
     {
         using var t = new TempFolder();

@@ -131,6 +131,26 @@ public class TokenScannerTests
     }
 
     [Fact]
+    public void Scan_OtherLineEnds_NelLineSeparatorVtFf()
+    {
+        // NEL (U+0085), LINE SEPARATOR (U+2028), VT and FF end lines too (docs/tokenizer.md).
+        Assert.Equal(["a", "|", "b", "|", "c", "|", "d", "|", "e", "|", "¶"], Scan("a\u0085b\u2028c\vd\fe"));
+    }
+
+    [Fact]
+    public void Scan_AccentedLettersPrecomposedAndCombined_AreDifferentTokens()
+    {
+        // No Unicode normalisation: precomposed é (U+00E9) and e + U+0301 stay distinct (docs/tokenizer.md, "Case").
+        Assert.Equal("caf\u00e9 cafe\u0301 na\u00efve \u00e5ngstr\u00f6m", Tokens("CAF\u00c9 CAFE\u0301 Na\u00efve \u00c5ngstr\u00f6m"));
+    }
+
+    [Fact]
+    public void Scan_MarkWithoutWord_IsDropped()
+    {
+        Assert.Equal("a b", Tokens("a \u0301 b"));
+    }
+
+    [Fact]
     public void Scan_PunctuationOnlyLine_IsNotBlank()
     {
         Assert.Equal(["a", "|", "|", "b", "|", "¶"], Scan("a\n***\nb"));
