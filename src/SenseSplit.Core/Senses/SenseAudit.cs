@@ -80,13 +80,7 @@ public static class SenseAudit
                 if (plan.Atoms.Length == 0 || !UnitContext(tagger, text, m, context)) continue;
                 TensorPrimitives.Add(mean, context, mean);
                 meanCount++;
-                int best = 0;
-                float bestCos = float.NegativeInfinity;
-                for (int i = 0; i < plan.Atoms.Length; i++)
-                {
-                    float c = TensorPrimitives.Dot(context, model.Atom(plan.Atoms[i]));
-                    if (c > bestCos) { bestCos = c; best = i; }
-                }
+                int best = BestOfAtoms(model, plan.Atoms, context);
                 TensorPrimitives.Add(sums[m.Term][best], context, sums[m.Term][best]);
                 counts[m.Term][best]++;
                 context.CopyTo(block.AsSpan(inBlock * d, d));
@@ -219,14 +213,7 @@ public static class SenseAudit
                     var ctx = block.AsSpan(r * d, d);
                     TensorPrimitives.Add(sum, ctx, sum);
                     candidateCounts[id]![a]++;
-                    var atoms = plans[id].Atoms;
-                    int best = 0;
-                    float bestCos = float.NegativeInfinity;
-                    for (int i = 0; i < atoms.Length; i++)
-                    {
-                        float c = TensorPrimitives.Dot(ctx, model.Atom(atoms[i]));
-                        if (c > bestCos) { bestCos = c; best = i; }
-                    }
+                    int best = BestOfAtoms(model, plans[id].Atoms, ctx);
                     var (ls, lc) = lent[id]![a];
                     TensorPrimitives.Add(ls[best], ctx, ls[best]);
                     lc[best]++;
@@ -292,6 +279,19 @@ public static class SenseAudit
 
     /// <summary>Contexts coded against the whole dictionary per product.</summary>
     private const int ContextBlock = 512;
+
+    /// <summary>Index into <paramref name="atoms"/> of the atom with the largest cosine to the unit context (first on ties).</summary>
+    private static int BestOfAtoms(SenseModel model, int[] atoms, ReadOnlySpan<float> context)
+    {
+        int best = 0;
+        float bestCos = float.NegativeInfinity;
+        for (int i = 0; i < atoms.Length; i++)
+        {
+            float c = TensorPrimitives.Dot(context, model.Atom(atoms[i]));
+            if (c > bestCos) { bestCos = c; best = i; }
+        }
+        return best;
+    }
 
     /// <summary>Index of the largest score among atoms that are neither generic nor diffuse; −1 if none.</summary>
     private static int BestUsableAtom(SenseModel model, ReadOnlySpan<float> scores)
